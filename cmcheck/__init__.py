@@ -1,0 +1,42 @@
+"""cmcheck — predict, measure and size RF common-mode chokes and baluns on ferrite cores.
+
+SI units everywhere inside (Hz, m, H, F, Ω, W); :mod:`cmcheck.units` parses what people type.
+"""
+
+from .choke import ChokeDesign, Prediction, air_core_inductance, choke_impedance, predict, winding_impedance
+from .cores import FactorCore, RingCore, effective_parameters, ring_core_factors, sleeve
+from .curve import ImpedanceCurve
+from .errors import CmcheckError, CmcheckWarning
+from .materials import Material, builtin_materials, get_material, load_material_csv
+from .units import Band, parse_band, parse_frequency, parse_length
+from .winding import Cable, Winding, Wire
+
+__version__ = "0.1.0"
+
+__all__ = [
+    "Band",
+    "Cable",
+    "ChokeDesign",
+    "CmcheckError",
+    "CmcheckWarning",
+    "FactorCore",
+    "ImpedanceCurve",
+    "Material",
+    "Prediction",
+    "RingCore",
+    "Winding",
+    "Wire",
+    "air_core_inductance",
+    "builtin_materials",
+    "choke_impedance",
+    "effective_parameters",
+    "get_material",
+    "load_material_csv",
+    "parse_band",
+    "parse_frequency",
+    "parse_length",
+    "predict",
+    "ring_core_factors",
+    "sleeve",
+    "winding_impedance",
+]

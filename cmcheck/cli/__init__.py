@@ -1,0 +1,5 @@
+"""The ``cmcheck`` command line: parse options, call the library, render the result."""
+
+from .app import app, main
+
+__all__ = ["app", "main"]

@@ -1,0 +1,202 @@
+"""Writing results: JSON, CSV, Touchstone and plots, each written whole or not at all.
+
+Every writer renders into a temporary file beside the target and renames it into place,
+so an error never leaves a half-written output, and a target that is also one of the inputs
+is refused before anything is written.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+import os
+import tempfile
+from pathlib import Path
+from typing import Callable, Iterable, Sequence
+
+import numpy as np
+
+from .curve import ImpedanceCurve
+from .errors import CmcheckError
+
+__all__ = [
+    "SAFETY_NOTES",
+    "atomic_write",
+    "check_outputs",
+    "curve_rows",
+    "plot_curves",
+    "to_jsonable",
+    "write_csv",
+    "write_json",
+    "write_touchstone",
+]
+
+SAFETY_NOTES = (
+    "Estimates only: verify by measurement before relying on a choke or balun.",
+    "At legal power the RF voltage across a high-impedance feed point or choke reaches "
+    "kilovolts (V = sqrt(P*R)): keep hands and insulation clear when transmitting.",
+    "Ferrite heats with loss, can crack, and loses permeability near its Curie temperature; "
+    "check the core temperature after a long transmission.",
+    "RF exposure limits, station grounding and lightning protection follow local regulations "
+    "and codes; defer to them and to licensed practice.",
+)
+
+
+def check_outputs(outputs: Iterable[str | os.PathLike | None], inputs: Iterable[str | os.PathLike]) -> None:
+    """Refuse outputs that would overwrite an input, or that repeat each other."""
+    ins = {Path(p).resolve() for p in inputs if p is not None}
+    seen: set[Path] = set()
+    for out in outputs:
+        if out is None:
+            continue
+        p = Path(out).resolve()
+        if p in ins:
+            raise CmcheckError(f"{out}: output would overwrite an input file; choose another name")
+        if p in seen:
+            raise CmcheckError(f"{out}: the same file is given for two outputs")
+        if p.is_dir():
+            raise CmcheckError(f"{out}: is a directory, expected a file name")
+        if not p.parent.is_dir():
+            raise CmcheckError(f"{out}: folder {p.parent} does not exist")
+        seen.add(p)
+
+
+def atomic_write(path: str | os.PathLike, render: Callable[[Path], None]) -> None:
+    """Call ``render(tmp_path)`` and move the result to ``path`` only if it succeeded."""
+    target = Path(path)
+    if not target.parent.is_dir():
+        raise CmcheckError(f"{path}: folder {target.parent} does not exist")
+    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=target.suffix, dir=target.parent)
+    os.close(fd)
+    tmp_path = Path(tmp)
+    try:
+        render(tmp_path)
+        os.replace(tmp_path, target)
+    finally:
+        if tmp_path.exists():
+            tmp_path.unlink()
+
+
+def to_jsonable(obj):
+    """numpy arrays and scalars to lists and floats; NaN/inf to None (JSON has neither)."""
+    if isinstance(obj, dict):
+        return {str(k): to_jsonable(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [to_jsonable(v) for v in obj]
+    if isinstance(obj, np.ndarray):
+        return to_jsonable(obj.tolist())
+    if isinstance(obj, (np.bool_,)):
+        return bool(obj)
+    if isinstance(obj, (np.integer,)):
+        return int(obj)
+    if isinstance(obj, (float, np.floating)):
+        v = float(obj)
+        return v if math.isfinite(v) else None
+    if isinstance(obj, complex):
+        return {"re": to_jsonable(obj.real), "im": to_jsonable(obj.imag)}
+    return obj
+
+
+def write_json(path, data: dict) -> None:
+    """Write ``data`` as indented JSON, atomically."""
+    text = json.dumps(to_jsonable(data), indent=2, ensure_ascii=False, allow_nan=False)
+    atomic_write(path, lambda p: p.write_text(text + "\n", encoding="utf-8"))
+
+
+def curve_rows(curve: ImpedanceCurve) -> tuple[list[str], list[list]]:
+    """CSV header and rows of a curve with the standard column names."""
+    header = ["frequency_hz", "resistance_ohm", "reactance_ohm", "impedance_ohm", "valid"]
+    rows = [
+        [f"{f:.9g}", f"{z.real:.9g}", f"{z.imag:.9g}", f"{abs(z):.9g}", int(v)]
+        for f, z, v in zip(curve.frequency_hz, curve.z, curve.valid)
+    ]
+    return header, rows
+
+
+def write_csv(path, header: Sequence[str], rows: Iterable[Sequence], comments: Sequence[str] = ()) -> None:
+    """Write a CSV file (``#`` comment lines first), atomically."""
+    buf = io.StringIO()
+    for c in comments:
+        buf.write(f"# {c}\n")
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(header)
+    w.writerows(rows)
+    text = buf.getvalue()
+    atomic_write(path, lambda p: p.write_text(text, encoding="utf-8"))
+
+
+def write_touchstone(path, curve: ImpedanceCurve, z0: float = 50.0, comments: Sequence[str] = ()) -> None:
+    """Write the curve as a series two-port Touchstone ``.s2p`` file with scikit-rf."""
+    if Path(path).suffix.lower() != ".s2p":
+        raise CmcheckError(f"{path}: a series two-port is written as a .s2p file")
+    ntwk = curve.to_network(z0=z0)
+    if comments:
+        ntwk.comments = "\n".join(comments)
+
+    def render(tmp: Path) -> None:
+        # scikit-rf appends the extension to the name it is given: write into a folder.
+        with tempfile.TemporaryDirectory(dir=tmp.parent) as d:
+            out = ntwk.write_touchstone(filename="out", dir=d, form="ri", return_string=False)
+            produced = Path(d) / "out.s2p"
+            os.replace(produced if produced.exists() else Path(out), tmp)
+
+    atomic_write(path, render)
+
+
+def plot_curves(
+    path,
+    curves: Sequence[ImpedanceCurve],
+    *,
+    band=None,
+    title: str = "",
+    quantities: Sequence[str] = ("R", "X", "|Z|"),
+    target_ohm: float | None = None,
+) -> None:
+    """Plot R, X and |Z| of one or more curves against log-frequency into a PNG, atomically.
+
+    Invalid points (``curve.valid`` False) are drawn over a grey background span;
+    the band, if given, is shaded.
+    """
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    fig, ax = plt.subplots(figsize=(8, 4.8), dpi=110)
+    styles = {"R": "-", "X": "--", "|Z|": ":"}
+    for i, c in enumerate(curves):
+        color = f"C{i}"
+        prefix = f"{c.label}: " if (c.label and len(curves) > 1) else ""
+        data = {"R": c.resistance, "X": c.reactance, "|Z|": c.magnitude}
+        for q in quantities:
+            y = np.where(c.valid, data[q], np.nan)
+            ax.plot(c.frequency_hz, y, styles[q], color=color if len(curves) > 1 else {"R": "C0", "X": "C1", "|Z|": "C2"}[q],
+                    label=f"{prefix}{q}")
+        if not c.valid.all():
+            inv = ~c.valid
+            ax.plot(c.frequency_hz, np.where(inv, c.resistance, np.nan), "-", color="0.6", lw=1)
+            _grey_spans(ax, c.frequency_hz, inv)
+    if band is not None:
+        for lo, hi in band.segments:
+            ax.axvspan(lo, hi, color="C2", alpha=0.08, lw=0)
+    if target_ohm is not None:
+        ax.axhline(target_ohm, color="k", lw=0.8, ls="-.", label=f"target {target_ohm:g} Ω")
+    ax.set_xscale("log")
+    ax.set_xlabel("frequency [Hz]")
+    ax.set_ylabel("impedance [Ω]")
+    ax.axhline(0, color="k", lw=0.5)
+    ax.grid(True, which="both", alpha=0.3)
+    ax.legend(fontsize=8, ncol=2 if len(curves) > 1 else 1)
+    if title:
+        ax.set_title(title, fontsize=10)
+    fig.tight_layout()
+    atomic_write(path, lambda p: fig.savefig(p, format="png"))
+    plt.close(fig)
+
+
+def _grey_spans(ax, f: np.ndarray, mask: np.ndarray) -> None:
+    edges = np.flatnonzero(np.diff(np.concatenate([[0], mask.astype(int), [0]])))
+    for a, b in zip(edges[::2], edges[1::2]):
+        ax.axvspan(f[a], f[max(a, b - 1)], color="0.85", alpha=0.6, lw=0)
