@@ -1,0 +1,145 @@
+"""Options shared by several commands, and turning their text into library objects.
+
+Commands declare parameters with these ``Annotated`` types so that the same option reads
+the same way everywhere (``predict``, ``extract --vs-model``, ``compare``...).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Annotated, Optional
+
+import typer
+
+from ..choke import ChokeDesign
+from ..cores import FactorCore, RingCore
+from ..errors import CmcheckError, UnitError
+from ..materials import get_material
+from ..units import Band, parse_band, parse_capacitance, parse_length, parse_wire_diameter
+from ..winding import Cable, Winding, Wire
+
+DESIGN_PANEL = "Design (core, winding)"
+OUTPUT_PANEL = "Outputs"
+
+Material = Annotated[
+    Optional[str],
+    typer.Option(
+        "--material", "-m",
+        help="Built-in material name (see `cmcheck materials`) or a CSV file "
+        "frequency_hz,mu_prime,mu_double_prime.",
+        rich_help_panel=DESIGN_PANEL,
+    ),
+]
+OD = Annotated[Optional[str], typer.Option("--od", help="Ring outside diameter with unit, e.g. 61mm, 2.4in.", rich_help_panel=DESIGN_PANEL)]
+ID = Annotated[Optional[str], typer.Option("--id", help="Ring inside diameter with unit, e.g. 35.6mm.", rich_help_panel=DESIGN_PANEL)]
+Height = Annotated[
+    Optional[str],
+    typer.Option("--height", help="Height of one ring (or length of a sleeve) with unit, e.g. 12.7mm.", rich_help_panel=DESIGN_PANEL),
+]
+Cores = Annotated[int, typer.Option("--cores", help="Number of identical rings stacked (heights add).", rich_help_panel=DESIGN_PANEL)]
+CoreFactor = Annotated[
+    Optional[str],
+    typer.Option(
+        "--core-factor",
+        help="Core factor Σl/A in 1/m, for shapes given only by it (two-hole cores); "
+        "replaces --od/--id/--height. Use --window for the hole diameter.",
+        rich_help_panel=DESIGN_PANEL,
+    ),
+]
+Window = Annotated[
+    Optional[str],
+    typer.Option("--window", help="Hole diameter of a --core-factor core, with unit, for the fit check.", rich_help_panel=DESIGN_PANEL),
+]
+Turns = Annotated[Optional[int], typer.Option("--turns", "-n", help="Number of turns (passes through the hole).", rich_help_panel=DESIGN_PANEL)]
+WireOpt = Annotated[
+    Optional[str],
+    typer.Option("--wire", help="Wire: a gauge (18awg) or bare diameter (1.0mm); 1mm when neither --wire nor --cable-od is given.", rich_help_panel=DESIGN_PANEL),
+]
+Insulation = Annotated[
+    str,
+    typer.Option("--insulation", help="Radial insulation thickness of --wire, with unit (0 = bare; enamel ≈ 0.03mm).", rich_help_panel=DESIGN_PANEL),
+]
+CableOD = Annotated[
+    Optional[str],
+    typer.Option("--cable-od", help="Wind a cable of this outside diameter (feedline choke), e.g. 5mm.", rich_help_panel=DESIGN_PANEL),
+]
+Cp = Annotated[
+    Optional[str],
+    typer.Option(
+        "--cp",
+        help="Stray capacitance across the winding, e.g. 2.8pF; default: single-layer estimate; 0 turns it off.",
+        rich_help_panel=DESIGN_PANEL,
+    ),
+]
+BandOpt = Annotated[
+    str,
+    typer.Option("--band", "-b", help="Frequency band(s): 1-100MHz, 3.5MHz-30MHz, or 1.8-2MHz,3.5-4MHz."),
+]
+Points = Annotated[int, typer.Option("--points", help="Log-spaced frequency points across the band.", min=2, max=100000)]
+JsonOut = Annotated[Optional[Path], typer.Option("--json", help="Write the results as JSON to this file.", rich_help_panel=OUTPUT_PANEL)]
+CsvOut = Annotated[Optional[Path], typer.Option("--csv", help="Write the curve as CSV to this file.", rich_help_panel=OUTPUT_PANEL)]
+PlotOut = Annotated[Optional[Path], typer.Option("--plot", help="Plot to this PNG file (log frequency).", rich_help_panel=OUTPUT_PANEL)]
+
+
+def band_from_option(text: str, option: str = "--band") -> Band:
+    """Parse a ``--band`` value, naming the option in the error."""
+    try:
+        return parse_band(text)
+    except UnitError as exc:
+        raise UnitError(f"{option}: {exc}") from None
+
+
+def _length(option: str, text: str, *, awg: bool = False) -> float:
+    try:
+        return parse_wire_diameter(text) if awg else parse_length(text)
+    except UnitError as exc:
+        raise UnitError(f"{option}: {exc}") from None
+
+
+def design_from_options(
+    *,
+    material: str | None,
+    od: str | None,
+    id: str | None,
+    height: str | None,
+    cores: int = 1,
+    core_factor: str | None = None,
+    window: str | None = None,
+    turns: int | None,
+    wire: str | None = None,
+    insulation: str = "0",
+    cable_od: str | None = None,
+    cp: str | None = None,
+) -> ChokeDesign:
+    """Build a :class:`~cmcheck.choke.ChokeDesign` from option text; errors name the option."""
+    if not material:
+        raise CmcheckError("--material is required (a built-in name or a CSV file)")
+    if turns is None:
+        raise CmcheckError("--turns is required")
+    if core_factor is not None:
+        if any(v is not None for v in (od, id, height)):
+            raise CmcheckError("give either --core-factor or --od/--id/--height, not both")
+        try:
+            c1 = float(core_factor)
+        except ValueError:
+            raise UnitError(f"--core-factor: {core_factor!r} is not a number in 1/m") from None
+        core = FactorCore(c1 / max(cores, 1), _length("--window", window) if window else None)
+    else:
+        missing = [n for n, v in (("--od", od), ("--id", id), ("--height", height)) if v is None]
+        if missing:
+            raise CmcheckError(f"the core needs {', '.join(missing)} (or --core-factor)")
+        core = RingCore(_length("--od", od), _length("--id", id), _length("--height", height), cores)
+    if wire is not None and cable_od is not None:
+        raise CmcheckError("give either --wire or --cable-od, not both")
+    if cable_od is not None:
+        conductor = Cable(_length("--cable-od", cable_od))
+    else:
+        conductor = Wire(_length("--wire", wire or "1mm", awg=True), _length("--insulation", insulation))
+    cap = None
+    if cp is not None:
+        try:
+            cap = parse_capacitance(cp)
+        except UnitError as exc:
+            raise UnitError(f"--cp: {exc}") from None
+    winding = Winding(turns, conductor, cap)
+    return ChokeDesign(core, get_material(material), winding)
