@@ -110,7 +110,7 @@ def _scalar(a):
 
 def _positive(name: str, value: float) -> float:
     if not (isinstance(value, (int, float)) and math.isfinite(value) and value > 0):
-        raise DimensionError(f"core {name} must be a positive length, got {value!r} m")
+        raise DimensionError(f"core {name} must be a positive length, got {value * 1e3:g} mm" if isinstance(value, (int, float)) else f"core {name} must be a positive length, got {value!r}")
     return float(value)
 
 

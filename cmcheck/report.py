@@ -73,6 +73,10 @@ def atomic_write(path: str | os.PathLike, render: Callable[[Path], None]) -> Non
     tmp_path = Path(tmp)
     try:
         render(tmp_path)
+        # mkstemp creates 0600; give the file the permissions a plain open() would.
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp_path, 0o666 & ~umask)
         os.replace(tmp_path, target)
     finally:
         if tmp_path.exists():
@@ -133,7 +137,11 @@ def write_touchstone(path, curve: ImpedanceCurve, z0: float = 50.0, comments: Se
         raise CmcheckError(f"{path}: a series two-port is written as a .s2p file")
     ntwk = curve.to_network(z0=z0)
     if comments:
-        ntwk.comments = "\n".join(comments)
+        # Touchstone files are ASCII; keep comments readable by every instrument's parser.
+        text = "\n".join(comments)
+        for a, b in (("×", "x"), ("µ", "u"), ("Ω", "ohm"), ("–", "-"), ("Σ", "sum ")):
+            text = text.replace(a, b)
+        ntwk.comments = text.encode("ascii", "replace").decode("ascii")
 
     def render(tmp: Path) -> None:
         # scikit-rf appends the extension to the name it is given: write into a folder.
@@ -184,7 +192,7 @@ def plot_curves(
     if target_ohm is not None:
         ax.axhline(target_ohm, color="k", lw=0.8, ls="-.", label=f"target {target_ohm:g} Ω")
     ax.set_xscale("log")
-    ax.set_xlabel("frequency [Hz]")
+    _frequency_axis(ax)
     ax.set_ylabel("impedance [Ω]")
     ax.axhline(0, color="k", lw=0.5)
     ax.grid(True, which="both", alpha=0.3)
@@ -194,6 +202,18 @@ def plot_curves(
     fig.tight_layout()
     atomic_write(path, lambda p: fig.savefig(p, format="png"))
     plt.close(fig)
+
+
+def _frequency_axis(ax) -> None:
+    """Label a log-frequency axis in kHz/MHz/GHz with plain numbers, not powers of ten."""
+    from matplotlib.ticker import FuncFormatter, LogLocator
+
+    lo, hi = ax.get_xlim()
+    scale, unit = next(((s, u) for s, u in ((1e9, "GHz"), (1e6, "MHz"), (1e3, "kHz")) if hi >= 10 * s), (1.0, "Hz"))
+    ax.xaxis.set_major_locator(LogLocator(base=10, subs=(1.0, 2.0, 5.0)))
+    ax.xaxis.set_minor_formatter(FuncFormatter(lambda v, _: ""))
+    ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _: f"{v / scale:g}"))
+    ax.set_xlabel(f"frequency [{unit}]")
 
 
 def _grey_spans(ax, f: np.ndarray, mask: np.ndarray) -> None:

@@ -1,0 +1,28 @@
+"""Shared rendering for the command line: one console, plain tables, notes."""
+
+from __future__ import annotations
+
+from typing import Iterable
+
+from rich import box
+from rich.console import Console
+from rich.table import Table
+
+#: Standard output; rich drops colour by itself when the output is not a terminal.
+console = Console(highlight=False)
+#: Standard error, for warnings and notes that must not mix with piped tables.
+err_console = Console(stderr=True, highlight=False)
+
+
+def table(*columns: str) -> Table:
+    """A compact table; numeric-looking columns (with a unit in brackets) align right."""
+    t = Table(box=box.SIMPLE_HEAD, pad_edge=False, show_edge=False)
+    for c in columns:
+        t.add_column(c, justify="right" if "[" in c or c in {"frequency", "µi", "µ'", "µ''", "µ''/µ'"} else "left")
+    return t
+
+
+def print_notes(notes: Iterable[str]) -> None:
+    """Print cautions and notes after the results, one per line, marked ``note:``."""
+    for n in notes:
+        console.print(f"note: {n}", style="dim")
