@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import os
 from typing import Iterable
 
 from rich import box
@@ -10,6 +11,9 @@ from rich.table import Table
 
 #: Standard output; rich drops colour by itself when the output is not a terminal.
 console = Console(highlight=False)
+if not console.is_terminal and "COLUMNS" not in os.environ:
+    # Piped or redirected output: rich would wrap at 80 columns; tables read better wider.
+    console.width = 110
 #: Standard error, for warnings and notes that must not mix with piped tables.
 err_console = Console(stderr=True, highlight=False)
 
