@@ -223,7 +223,8 @@ class ChokeDesign:
         core = self.core
         d: dict = {"material": self.material.name, "turns": self.winding.turns}
         if isinstance(core, RingCore):
-            d.update(od_m=core.od, id_m=core.id, height_m=core.height, cores=core.stack)
+            d.update(od_m=core.od, id_m=core.id, height_m=core.height, cores=core.stack,
+                     le_m=core.le, ae_m2=core.ae, ve_m3=core.ve)
         else:
             d.update(core_factor_per_m=core.c1, window_diameter_m=core.window_diameter)
         cond = self.winding.conductor

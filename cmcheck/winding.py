@@ -13,7 +13,6 @@ import warnings
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import special
 
 from .errors import CmcheckWarning, DimensionError, WindingError
 
@@ -91,6 +90,8 @@ def round_wire_resistance(frequency_hz, diameter, length, resistivity=COPPER_RES
     Ramo, Whinnery & Van Duzer, *Fields and Waves in Communication Electronics*, 3rd ed.,
     1994, §5.6, eq. (11): Z_i = (k ρ / 2π a) · J0(ka)/J1(ka), k = (1 − j)/δ per unit length.
     """
+    from scipy import special  # kept off the CLI start-up path
+
     f = np.asarray(frequency_hz, dtype=float)
     a = np.asarray(diameter, dtype=float) / 2.0
     delta = skin_depth(f, resistivity)

@@ -9,6 +9,7 @@ import numpy as np
 import typer
 
 from ..choke import predict as predict_choke
+from ..cores import RingCore
 from ..materials import builtin_materials, get_material
 from ..report import SAFETY_NOTES, check_outputs, curve_rows, plot_curves, write_csv, write_json, write_touchstone
 from ..units import format_quantity
@@ -63,12 +64,16 @@ def predict(
 
     console.print(f"[bold]{design.describe()}[/bold]")
     core = design.core
-    info = [f"C1 = Σl/A = {core.c1:.5g} 1/m", f"L0 = {format_quantity(design.l0, 'H')}",
-            f"L(low f) = {format_quantity(s['low_frequency_inductance_h'], 'H')}",
-            f"Cp = {format_quantity(s['cp_f'], 'F')} ({s['cp_source']})"]
+    core_info = [f"C1 = Σl/A = {core.c1:.5g} 1/m"]
+    if isinstance(core, RingCore):
+        core_info.append(f"le = {core.le * 1e3:.4g} mm, Ae = {core.ae * 1e6:.4g} mm², Ve = {core.ve * 1e9:.4g} mm³")
+    wind_info = [f"L0 = {format_quantity(design.l0, 'H')}",
+                 f"L(low f) = {format_quantity(s['low_frequency_inductance_h'], 'H')}",
+                 f"Cp = {format_quantity(s['cp_f'], 'F')} ({s['cp_source']})"]
     if s["conductor_length_m"] is not None:
-        info.append(f"conductor {s['conductor_length_m'] * 1e3:.0f} mm + leads")
-    console.print("  " + ", ".join(info))
+        wind_info.append(f"conductor {s['conductor_length_m'] * 1e3:.0f} mm + leads")
+    console.print("  core: " + ", ".join(core_info))
+    console.print("  winding: " + ", ".join(wind_info))
 
     idx = _table_rows(curve.frequency_hz, b, rows, s["min_resistance_hz"])
     t = table("frequency", "R [Ω]", "X [Ω]", "|Z| [Ω]", "R>|X|")
