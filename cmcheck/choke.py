@@ -8,12 +8,14 @@ search evaluates thousands of candidates as one array of shape (candidates, freq
 from __future__ import annotations
 
 import math
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
 
 from .cores import FactorCore, RingCore
 from .curve import ImpedanceCurve, resistive_ranges, self_resonance
+from .errors import CmcheckWarning
 from .materials import Material
 from .units import Band
 from .winding import MU0, Cable, Winding, check_fit, stray_capacitance, turn_length
@@ -326,6 +328,13 @@ def predict(design: ChokeDesign, band: Band, points: int = 201) -> Prediction:
         When a tabulated material does not cover the band.
     """
     max_turns = design.max_turns
+    if design.cp_source == "none":
+        warnings.warn(
+            "no stray-capacitance estimate for a core given only by its factor; the model has no "
+            "self-resonance unless --cp (Winding.cp) is given",
+            CmcheckWarning,
+            stacklevel=2,
+        )
     f = band.grid(points)
     curve = design.curve(f)
     inside = band.contains(f)

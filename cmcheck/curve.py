@@ -17,6 +17,7 @@ __all__ = [
     "series_s21",
     "self_resonance",
     "resistive_ranges",
+    "true_runs",
 ]
 
 
@@ -79,20 +80,20 @@ def self_resonance(frequency_hz, z):
 
 
 def resistive_ranges(frequency_hz, z) -> list[tuple[float, float]]:
-    """Contiguous frequency ranges [Hz] where the impedance is mostly resistive (R > |X|)."""
+    """Contiguous frequency ranges [Hz] where the impedance is mostly resistive (R > |X|).
+
+    Each range runs from the first to the last grid point where R > |X| holds.
+    """
     f = np.asarray(frequency_hz, dtype=float)
     z = np.asarray(z, dtype=complex)
-    mask = z.real > np.abs(z.imag)
-    ranges = []
-    start = None
-    for i, m in enumerate(mask):
-        if m and start is None:
-            start = i
-        if start is not None and (not m or i == len(mask) - 1):
-            end = i if m else i - 1
-            ranges.append((float(f[start]), float(f[end])))
-            start = None
-    return ranges
+    return [(float(f[a]), float(f[b - 1])) for a, b in true_runs(z.real > np.abs(z.imag))]
+
+
+def true_runs(mask) -> list[tuple[int, int]]:
+    """Start and end (exclusive) indices of each run of True in a boolean array."""
+    m = np.asarray(mask, dtype=np.int8)
+    edges = np.flatnonzero(np.diff(np.concatenate([[0], m, [0]])))
+    return list(zip(edges[::2].tolist(), edges[1::2].tolist()))
 
 
 @dataclass(frozen=True, eq=False)

@@ -18,7 +18,7 @@ from typing import Callable, Iterable, Sequence
 
 import numpy as np
 
-from .curve import ImpedanceCurve
+from .curve import ImpedanceCurve, true_runs
 from .errors import CmcheckError
 
 __all__ = [
@@ -217,6 +217,5 @@ def _frequency_axis(ax) -> None:
 
 
 def _grey_spans(ax, f: np.ndarray, mask: np.ndarray) -> None:
-    edges = np.flatnonzero(np.diff(np.concatenate([[0], mask.astype(int), [0]])))
-    for a, b in zip(edges[::2], edges[1::2]):
+    for a, b in true_runs(mask):
         ax.axvspan(f[a], f[max(a, b - 1)], color="0.85", alpha=0.6, lw=0)
