@@ -1,0 +1,786 @@
+"""Sizing: search material × ring size × stacked cores × turns for chokes that meet a target.
+
+Every candidate is evaluated with the model of :func:`cmcheck.choke.predict` — the same L0,
+µ(f), conductor resistance and stray-capacitance estimate, through
+:func:`cmcheck.choke.choke_impedance` — but all at once, as arrays shaped
+(candidates, frequencies), one chunk at a time to bound memory. µ(f) is evaluated once per
+material and broadcast; geometry (core factor, turn length, Cp) once per core-and-turns
+combination and shared by all materials.
+
+The criterion is the minimum resistance (or |Z|) over the band's grid, edges included. Passing
+designs are ranked by a stated cost — total core volume, then turns, then (larger) margin —
+and a short list keeps only the cheapest design of each material-and-core-size pair, at most
+two per material and two per core size while enough other designs pass. When nothing passes, the
+closest design is diagnosed: why it falls short and what to relax.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from dataclasses import dataclass, field, replace
+from typing import Callable, Sequence
+
+import numpy as np
+
+from .choke import ChokeDesign, Prediction, air_core_inductance, choke_impedance, predict
+from .cores import RingCore, effective_parameters, ring_core_factors, ring_surface_area
+from .errors import DesignError
+from .materials import Material
+from .ringsizes import RingSizes, bend_radius, builtin_ring_sizes, load_ring_sizes
+from .thermal import DEFAULT_MAX_RISE_K, Drive, heat_check
+from .units import Band, format_quantity
+from .winding import Cable, Winding, Wire, max_turns_single_layer, stray_capacitance, turn_length
+
+__all__ = [
+    "DEFAULT_BEND_RATIO",
+    "DEFAULT_MAX_CORES",
+    "DEFAULT_TARGET_OHM",
+    "Diagnosis",
+    "RingSizes",
+    "SizeResult",
+    "SizeSpec",
+    "SizedDesign",
+    "bend_radius",
+    "builtin_ring_sizes",
+    "half_permeability_hz",
+    "load_ring_sizes",
+    "size",
+]
+
+#: Smallest bend radius of a cable wound through a core, as a multiple of its outside
+#: diameter. Cable makers quote 5–10 × OD for installed runs, yet 5 mm coax is routinely
+#: wound on 61 mm rings (bend ≈ 1.8 × OD) without harm; 1.5 × keeps that and excludes tighter
+#: bends that kink coax. Common practice, no published source.
+DEFAULT_BEND_RATIO = 1.5
+
+#: Default target: at least 1 kΩ resistive across the band. Common practice, no published
+#: source (see DESIGN.md §4 "Why resistance matters").
+DEFAULT_TARGET_OHM = 1000.0
+
+#: Most identical cores stacked by default: beyond four, a longer choke or a second choke in
+#: series is usually easier to build. Common practice, no published source.
+DEFAULT_MAX_CORES = 4
+
+# About 400 k complex points per chunk: large enough that numpy's per-call overhead is small,
+# small enough (≈ 6 MB per temporary) to stay in cache-friendly territory on small machines.
+_CHUNK_POINTS = 400_000
+
+
+# ---------------------------------------------------------------------------------------------
+# Specification and results
+# ---------------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, eq=False)
+class SizeSpec:
+    """What to size for, and the design space to search.
+
+    Parameters
+    ----------
+    band : Band
+        Frequencies [Hz]; with several ranges the criterion holds in all of them.
+    conductor : Wire or Cable
+        What is wound.
+    materials : sequence of Material
+    sizes : RingSizes
+    target_ohm : float
+        Required minimum over the band [Ω] of R (``criterion="resistance"``) or |Z|.
+    criterion : {"resistance", "impedance"}
+    max_cores : int
+        Stacks of 1..max_cores identical pieces are searched.
+    max_turns : int, optional
+        Cap on turns besides what fits in one layer.
+    min_bend_radius : float, optional
+        Smallest allowed bend radius of a cable for two or more turns [m]; default
+        ``DEFAULT_BEND_RATIO`` × cable OD; wire is not limited unless given.
+    cp_factor : float
+        Multiplies the single-layer Cp estimate (≥ 1 for a pessimistic self-resonance).
+    points : int
+        Grid points over the band, as ``predict``'s ``points`` (edges added).
+    top : int
+        Length of the short list.
+    drive : Drive, optional
+        Power and common-mode drive, for the heat check.
+    max_rise_k : float
+        Designs whose estimated temperature rise exceeds this are dropped [K].
+    keep_hot : bool
+        List designs above ``max_rise_k`` anyway, flagged ``too_hot``, instead of dropping them.
+    """
+
+    band: Band
+    conductor: Wire | Cable
+    materials: Sequence[Material]
+    sizes: RingSizes
+    target_ohm: float = DEFAULT_TARGET_OHM
+    criterion: str = "resistance"
+    max_cores: int = DEFAULT_MAX_CORES
+    max_turns: int | None = None
+    min_bend_radius: float | None = None
+    cp_factor: float = 1.0
+    points: int = 201
+    top: int = 5
+    drive: Drive | None = None
+    max_rise_k: float = DEFAULT_MAX_RISE_K
+    keep_hot: bool = False
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "materials", tuple(self.materials))
+        if not (math.isfinite(self.target_ohm) and self.target_ohm > 0):
+            opt = "--target-r" if self.criterion == "resistance" else "--target-z"
+            raise DesignError(f"{opt} must be a positive resistance, got {self.target_ohm:g} Ω")
+        if self.criterion not in ("resistance", "impedance"):
+            raise DesignError(f"criterion must be 'resistance' or 'impedance', got {self.criterion!r}")
+        if not self.materials:
+            raise DesignError("--materials: name at least one material")
+        names = [m.name for m in self.materials]
+        dup = sorted({n for n in names if names.count(n) > 1})
+        if dup:
+            raise DesignError(f"--materials: {', '.join(dup)} given more than once")
+        if len(self.sizes) == 0:
+            raise DesignError("--sizes: the table of core sizes is empty")
+        if not (isinstance(self.max_cores, (int, np.integer)) and self.max_cores >= 1):
+            raise DesignError(f"--max-cores must be a whole number ≥ 1, got {self.max_cores!r}")
+        if self.max_turns is not None and not (isinstance(self.max_turns, (int, np.integer)) and self.max_turns >= 1):
+            raise DesignError(f"--max-turns must be a whole number ≥ 1, got {self.max_turns!r}")
+        if self.min_bend_radius is not None and not (math.isfinite(self.min_bend_radius) and self.min_bend_radius >= 0):
+            raise DesignError(f"--min-bend-radius must be ≥ 0, got {self.min_bend_radius!r} m")
+        if not (math.isfinite(self.cp_factor) and self.cp_factor >= 0):
+            raise DesignError(f"--cp-factor must be ≥ 0, got {self.cp_factor:g}")
+        if not (isinstance(self.points, (int, np.integer)) and self.points >= 2):
+            raise DesignError(f"--points must be at least 2, got {self.points!r}")
+        if not (isinstance(self.top, (int, np.integer)) and self.top >= 1):
+            raise DesignError(f"--top must be a whole number ≥ 1, got {self.top!r}")
+        if not (math.isfinite(self.max_rise_k) and self.max_rise_k > 0):
+            raise DesignError(f"--max-rise must be positive, got {self.max_rise_k:g} K")
+
+    @property
+    def bend_limit(self) -> float:
+        """The bend radius limit in force [m] (0: none)."""
+        if self.min_bend_radius is not None:
+            return self.min_bend_radius
+        return DEFAULT_BEND_RATIO * self.conductor.od if isinstance(self.conductor, Cable) else 0.0
+
+    @property
+    def metric_name(self) -> str:
+        return "R" if self.criterion == "resistance" else "|Z|"
+
+
+@dataclass(frozen=True, eq=False)
+class SizedDesign:
+    """One design from the search, with its figures of merit.
+
+    ``min_resistance_ohm`` (and ``min_impedance_ohm``) come from the vectorised search; the
+    self-resonance and resistive fraction from :func:`cmcheck.choke.predict` on the same design
+    (``prediction``), which reproduces the minimum.
+    """
+
+    design: ChokeDesign
+    kind: str
+    min_resistance_ohm: float
+    min_resistance_hz: float
+    min_impedance_ohm: float
+    min_impedance_hz: float
+    margin: float
+    max_turns_fit: int
+    bend_radius_m: float
+    prediction: Prediction
+    heat: dict | None = None
+
+    @property
+    def core(self) -> RingCore:
+        return self.design.core  # type: ignore[return-value]
+
+    @property
+    def self_resonance_hz(self) -> float | None:
+        return self.prediction.summary["self_resonance_hz"]
+
+    @property
+    def core_volume_m3(self) -> float:
+        return self.core.volume
+
+    def to_dict(self) -> dict:
+        d = self.design.to_dict()
+        d.update(
+            kind=self.kind,
+            min_resistance_ohm=self.min_resistance_ohm,
+            min_resistance_hz=self.min_resistance_hz,
+            min_impedance_ohm=self.min_impedance_ohm,
+            min_impedance_hz=self.min_impedance_hz,
+            margin=self.margin,
+            self_resonance_hz=self.self_resonance_hz,
+            resistive_fraction=self.prediction.summary["resistive_fraction"],
+            core_volume_m3=self.core_volume_m3,
+            core_surface_m2=self.core.surface_area,
+            max_turns_one_layer=self.max_turns_fit,
+            bend_radius_m=self.bend_radius_m,
+        )
+        if self.design.cp_source == "given":
+            d["cp_source"] = "estimated, scaled by --cp-factor"
+        if self.heat is not None:
+            d.update(self.heat)
+        return d
+
+
+@dataclass(frozen=True)
+class Diagnosis:
+    """Why no design met the target, and what to relax (one line each)."""
+
+    reason: str
+    relax: tuple[str, ...]
+    limits: tuple[str, ...] = ()
+    facts: tuple[str, ...] = ()
+
+    def to_dict(self) -> dict:
+        return {"reason": self.reason, "relax": list(self.relax), "limits": list(self.limits), "facts": list(self.facts)}
+
+
+@dataclass(frozen=True, eq=False)
+class SizeResult:
+    """Result of :func:`size`.
+
+    Attributes
+    ----------
+    spec : SizeSpec
+    designs : tuple of SizedDesign
+        The short list, cheapest first (empty when nothing passes).
+    candidates_searched : int
+    meeting_target : int
+        Candidates whose minimum over the band reaches the target.
+    too_hot : int
+        Of those, how many were dropped for exceeding ``max_rise_k``.
+    closest : SizedDesign or None
+        When nothing passes: the design nearest to passing.
+    diagnosis : Diagnosis or None
+    elapsed_s : float
+    space : dict
+        Counts describing the design space (materials, sizes, stacks, turns range).
+    """
+
+    spec: SizeSpec
+    designs: tuple[SizedDesign, ...]
+    candidates_searched: int
+    meeting_target: int
+    too_hot: int
+    closest: SizedDesign | None
+    diagnosis: Diagnosis | None
+    elapsed_s: float
+    space: dict = field(default_factory=dict)
+
+    @property
+    def passing(self) -> int:
+        return self.meeting_target - self.too_hot
+
+    @property
+    def ok(self) -> bool:
+        return bool(self.designs)
+
+    def to_dict(self) -> dict:
+        s = self.spec
+        d = {
+            "designs": [x.to_dict() for x in self.designs],
+            "candidates_searched": self.candidates_searched,
+            "meeting_target": self.meeting_target,
+            "too_hot": self.too_hot,
+            "passing": self.passing,
+            "band_hz": [list(seg) for seg in s.band.segments],
+            "criterion": s.criterion,
+            "target_ohm": s.target_ohm,
+            "ranking": "total core volume, then turns, then larger margin; cheapest per material and core size, at most two per material and per size",
+            "design_space": self.space,
+            "min_bend_radius_m": s.bend_limit,
+            "cp_factor": s.cp_factor,
+            "max_rise_k": s.max_rise_k if s.drive else None,
+            "drive": s.drive.to_dict() if s.drive else None,
+        }
+        if self.closest is not None:
+            d["closest"] = self.closest.to_dict()
+        if self.diagnosis is not None:
+            d.update(self.diagnosis.to_dict())
+        return d
+
+
+# ---------------------------------------------------------------------------------------------
+# The search
+# ---------------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, eq=False)
+class _Geometry:
+    """Per core-and-turns combination (shared by all materials), arrays of length G."""
+
+    size_idx: np.ndarray
+    stack: np.ndarray
+    turns: np.ndarray
+    n_fit: np.ndarray
+    l0: np.ndarray
+    cp: np.ndarray
+    length: np.ndarray
+    ae: np.ndarray
+    area: np.ndarray
+    volume: np.ndarray
+    bend: np.ndarray
+
+
+def _geometry(spec: SizeSpec, *, turns_factor: float = 1.0, limits: bool = True) -> tuple[_Geometry, dict]:
+    """Enumerate (size, stack, turns) and their material-independent quantities.
+
+    ``turns_factor`` and ``limits=False`` widen the space for the no-solution diagnosis
+    (more turns than fit, no bend or --max-turns limit).
+    """
+    sizes = spec.sizes
+    cond = spec.conductor
+    d_out = cond.outer_diameter
+    s_idx, stack = np.meshgrid(np.arange(len(sizes)), np.arange(1, spec.max_cores + 1), indexing="ij")
+    s_idx, stack = s_idx.ravel(), stack.ravel()
+    od, idd = sizes.od[s_idx], sizes.id[s_idx]
+    h_total = sizes.height[s_idx] * stack
+    n_fit = np.atleast_1d(max_turns_single_layer(idd, d_out))
+    bend = np.atleast_1d(bend_radius(od, idd, h_total, d_out))
+    limit = spec.bend_limit
+    bent_too_far = bend + 1e-12 < limit
+    n_max = np.floor(n_fit * turns_factor).astype(int)
+    if limits:
+        # One pass straight through needs no bend round the core; more turns do.
+        n_max = np.where(bent_too_far, np.minimum(n_max, 1), n_max)
+        if spec.max_turns is not None:
+            n_max = np.minimum(n_max, spec.max_turns)
+    keep = n_max >= 1
+    space = {
+        "materials": len(spec.materials),
+        "sizes": len(sizes),
+        "max_cores": spec.max_cores,
+        "stacks_that_fit": int(np.count_nonzero(keep)),
+        "stacks_bend_limited": int(np.count_nonzero(keep & (n_max == 1) & (n_fit > 1) & bent_too_far)),
+        "max_turns": int(n_max.max()) if n_max.size else 0,
+        "windings_per_material": int(n_max[keep].sum()),
+    }
+    counts = n_max[keep]
+    base = np.repeat(np.flatnonzero(keep), counts)
+    starts = np.repeat(np.cumsum(counts) - counts, counts)
+    turns = (np.arange(base.size) - starts + 1).astype(int)
+    s_idx, stack, n_fit = s_idx[base], stack[base], n_fit[base]
+    od, idd, h_total, bend = od[base], idd[base], h_total[base], bend[base]
+    c1, c2 = (np.atleast_1d(c) for c in ring_core_factors(od, idd, h_total))
+    cp = np.atleast_1d(
+        stray_capacitance(od, idd, h_total, d_out, cond.conducting_diameter, turns, cond.effective_eps_r)
+    )
+    geo = _Geometry(
+        size_idx=s_idx, stack=stack, turns=turns, n_fit=n_fit,
+        l0=np.atleast_1d(air_core_inductance(c1, turns)),
+        cp=cp * spec.cp_factor,
+        length=turns * np.atleast_1d(turn_length(od, idd, h_total, d_out)),
+        ae=np.atleast_1d(effective_parameters(c1, c2)[1]),
+        area=np.atleast_1d(ring_surface_area(od, idd, h_total)),
+        volume=np.pi / 4.0 * (od**2 - idd**2) * h_total,
+        bend=bend,
+    )
+    return geo, space
+
+
+@dataclass
+class _Scan:
+    """What one pass over the candidates found."""
+
+    best_score: float = -np.inf
+    best_at: tuple[int, int] | None = None
+    meeting: int = 0
+    hot: int = 0
+    coolest_hot: tuple[float, int, int] | None = None
+    passing: list = field(default_factory=list)
+
+
+def _scan(spec: SizeSpec, geo: _Geometry, f: np.ndarray, mus: Sequence[np.ndarray], r_per_m: np.ndarray, *,
+          collect: bool = True, progress: Callable[[int, int], None] | None = None) -> _Scan:
+    """Evaluate every (material, geometry) candidate, chunk by chunk.
+
+    With ``collect=False`` only the best score is wanted (diagnosis): the pass stops at the
+    first candidate that meets the target.
+    """
+    out = _Scan()
+    G = geo.turns.size
+    total = G * len(mus)
+    rows = max(64, _CHUNK_POINTS // max(f.size, 1))
+    use_r = spec.criterion == "resistance"
+    done = 0
+    for m, mu in enumerate(mus):
+        for a in range(0, G, rows):
+            b = min(a + rows, G)
+            z = choke_impedance(f, geo.l0[a:b, None], mu, geo.length[a:b, None] * r_per_m, geo.cp[a:b, None])
+            metric = z.real if use_r else np.abs(z)
+            v_min = metric.min(axis=1)
+            k = int(np.argmax(v_min))
+            if v_min[k] / spec.target_ohm > out.best_score:
+                out.best_score, out.best_at = float(v_min[k] / spec.target_ohm), (m, a + k)
+            ok = np.flatnonzero(v_min >= spec.target_ohm)
+            done += b - a
+            if progress is not None:
+                progress(done, total)
+            if not ok.size:
+                continue
+            if not collect:
+                return out
+            out.meeting += ok.size
+            zk, gi = z[ok], a + ok
+            r_min, r_hz = _minimum(zk.real, f)
+            x_min, x_hz = _minimum(np.abs(zk), f)
+            heat = np.full((ok.size, 5), np.nan)
+            cool = np.ones(ok.size, bool)
+            if spec.drive is not None:
+                hc = heat_check(spec.drive, f, zk, geo.turns[gi], geo.ae[gi], geo.area[gi])
+                heat = np.stack([hc.dissipation_w, hc.dissipation_hz, hc.temperature_rise_k, hc.peak_flux_t,
+                                 hc.peak_flux_hz], axis=1)
+                cool = hc.temperature_rise_k <= spec.max_rise_k
+                if not cool.all():
+                    out.hot += int(np.count_nonzero(~cool))
+                    j = int(np.argmin(np.where(cool, np.inf, hc.temperature_rise_k)))
+                    if out.coolest_hot is None or hc.temperature_rise_k[j] < out.coolest_hot[0]:
+                        out.coolest_hot = (float(hc.temperature_rise_k[j]), m, int(gi[j]))
+                if spec.keep_hot:
+                    cool = np.ones(ok.size, bool)
+            if cool.any():
+                out.passing.append((np.full(int(cool.sum()), m), gi[cool], r_min[cool], r_hz[cool], x_min[cool],
+                                    x_hz[cool], v_min[ok][cool] / spec.target_ohm, heat[cool]))
+    return out
+
+
+def size(spec: SizeSpec, progress: Callable[[int, int], None] | None = None) -> SizeResult:
+    """Search the design space of ``spec`` for chokes meeting the target.
+
+    Parameters
+    ----------
+    spec : SizeSpec
+    progress : callable, optional
+        Called as ``progress(done, total)`` after each chunk of candidates.
+
+    Returns
+    -------
+    SizeResult
+
+    Raises
+    ------
+    MaterialError
+        When a tabulated material does not cover the band.
+
+    References
+    ----------
+    Model and sources as :func:`cmcheck.choke.predict` (IEC 60205 core factor, IEV 221-03-06
+    winding impedance, Massarini & Kazimierczuk 1997 stray capacitance); heat per
+    :mod:`cmcheck.thermal` (McLyman, 3rd ed., ch. 6).
+    """
+    t0 = time.perf_counter()
+    band = spec.band
+    f_grid = band.grid(spec.points)
+    f = f_grid[band.contains(f_grid)]
+    mus = [np.asarray(mat.permeability(f), complex) for mat in spec.materials]
+    # Rc is proportional to conductor length in both conductor models: evaluate one metre once.
+    r_per_m = np.asarray(spec.conductor.resistance(f, 1.0), float)
+    geo, space = _geometry(spec)
+    scan = _scan(spec, geo, f, mus, r_per_m, progress=progress)
+    total = geo.turns.size * len(mus)
+    closest = diagnosis = None
+    if scan.passing:
+        cols = [np.concatenate([p[i] for p in scan.passing]) for i in range(8)]
+        designs = _short_list(spec, geo, *cols)
+    else:
+        designs = ()
+        if scan.meeting and scan.coolest_hot is not None:
+            _, m, g = scan.coolest_hot
+            closest = _single(spec, geo, m, g, f)
+            diagnosis = _diagnose_heat(spec, closest, scan.meeting, f, mus, r_per_m)
+        elif scan.best_at is not None:
+            closest = _single(spec, geo, *scan.best_at, f)
+            diagnosis = _diagnose(spec, closest, f, mus, r_per_m)
+        else:
+            diagnosis = _diagnose_nothing_fits(spec)
+    return SizeResult(
+        spec=spec, designs=designs, candidates_searched=total, meeting_target=scan.meeting, too_hot=scan.hot,
+        closest=closest, diagnosis=diagnosis, elapsed_s=time.perf_counter() - t0, space=space,
+    )
+
+
+def _minimum(values: np.ndarray, f: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    i = np.argmin(values, axis=1)
+    return values[np.arange(values.shape[0]), i], f[i]
+
+
+def _heat_dict(spec: SizeSpec, row) -> dict | None:
+    if spec.drive is None:
+        return None
+    p, p_hz, dt, bpk, b_hz = (float(v) for v in row)
+    return {
+        "dissipation_w": p, "dissipation_hz": p_hz, "temperature_rise_k": dt,
+        "peak_flux_density_t": bpk, "peak_flux_hz": b_hz, "too_hot": bool(dt > spec.max_rise_k),
+    }
+
+
+def _short_list(spec, geo, mat, g, r_min, r_hz, x_min, x_hz, margin, heat) -> tuple[SizedDesign, ...]:
+    """Rank by cost and keep a diverse few: the cheapest per (material, size) pair, at most two per
+    material and two per core size while enough others pass."""
+    order = np.lexsort((-margin, geo.turns[g], geo.volume[g]))
+    chosen: list[int] = []
+    leftovers: list[int] = []
+    seen_pair: set[tuple[int, int]] = set()
+    per_mat: dict[int, int] = {}
+    per_size: dict[int, int] = {}
+    for i in order:
+        m, s = int(mat[i]), int(geo.size_idx[g[i]])
+        if (m, s) in seen_pair:
+            continue
+        seen_pair.add((m, s))
+        if per_mat.get(m, 0) >= 2 or per_size.get(s, 0) >= 2:
+            leftovers.append(int(i))
+            continue
+        per_mat[m] = per_mat.get(m, 0) + 1
+        per_size[s] = per_size.get(s, 0) + 1
+        chosen.append(int(i))
+        if len(chosen) >= spec.top:
+            break
+    # Few materials pass: let them fill the list rather than show fewer designs.
+    chosen += leftovers[: max(0, spec.top - len(chosen))]
+    chosen.sort(key=lambda i: (geo.volume[g[i]], geo.turns[g[i]], -margin[i]))
+    return tuple(
+        _make(spec, geo, int(mat[i]), int(g[i]), float(r_min[i]), float(r_hz[i]), float(x_min[i]), float(x_hz[i]),
+              float(margin[i]), _heat_dict(spec, heat[i]))
+        for i in chosen
+    )
+
+
+def _design(spec: SizeSpec, geo: _Geometry, m: int, g: int) -> ChokeDesign:
+    s = int(geo.size_idx[g])
+    core = RingCore(float(spec.sizes.od[s]), float(spec.sizes.id[s]), float(spec.sizes.height[s]), int(geo.stack[g]))
+    # With the plain estimate, leave Cp to the model (as predict would); a scaled one is given.
+    cp = None if spec.cp_factor == 1.0 else float(geo.cp[g])
+    return ChokeDesign(core, spec.materials[m], Winding(int(geo.turns[g]), spec.conductor, cp))
+
+
+def _make(spec, geo, m, g, r_min, r_hz, x_min, x_hz, margin, heat) -> SizedDesign:
+    design = _design(spec, geo, m, g)
+    return SizedDesign(
+        design=design, kind=spec.sizes.kind[int(geo.size_idx[g])], min_resistance_ohm=r_min, min_resistance_hz=r_hz,
+        min_impedance_ohm=x_min, min_impedance_hz=x_hz, margin=margin, max_turns_fit=int(geo.n_fit[g]),
+        bend_radius_m=float(geo.bend[g]), prediction=predict(design, spec.band, spec.points), heat=heat,
+    )
+
+
+def _single(spec: SizeSpec, geo: _Geometry, m: int, g: int, f: np.ndarray) -> SizedDesign:
+    """One candidate evaluated in full (the closest design), heat included."""
+    one = _Geometry(**{k: v[[g]] for k, v in geo.__dict__.items()})
+    mu = np.asarray(spec.materials[m].permeability(f), complex)
+    z = choke_impedance(f, one.l0[:, None], mu, one.length[:, None] * spec.conductor.resistance(f, 1.0), one.cp[:, None])
+    r_min, r_hz = _minimum(z.real, f)
+    x_min, x_hz = _minimum(np.abs(z), f)
+    v = r_min[0] if spec.criterion == "resistance" else x_min[0]
+    heat = None
+    if spec.drive is not None:
+        hc = heat_check(spec.drive, f, z, one.turns, one.ae, one.area)
+        heat = _heat_dict(spec, [hc.dissipation_w[0], hc.dissipation_hz[0], hc.temperature_rise_k[0],
+                                 hc.peak_flux_t[0], hc.peak_flux_hz[0]])
+    return _make(spec, geo, m, g, float(r_min[0]), float(r_hz[0]), float(x_min[0]), float(x_hz[0]),
+                 float(v / spec.target_ohm), heat)
+
+
+# ---------------------------------------------------------------------------------------------
+# Diagnosis of a failed search
+# ---------------------------------------------------------------------------------------------
+
+
+def format_rise(k: float) -> str:
+    """A temperature rise for people: past a few hundred kelvin the number only means "destroyed"."""
+    return f"≈ {k:.0f} K" if k < 300 else "> 300 K"
+
+
+def _hz(f: float | None) -> str:
+    return "none found" if f is None else format_quantity(f, "Hz", 3)
+
+
+def half_permeability_hz(material: Material, low_hz: float = 1e4, high_hz: float = 1e10) -> float | None:
+    """Lowest frequency [Hz] where |µ| has fallen to half its low-frequency value, or None.
+
+    Parameters
+    ----------
+    material : Material
+    low_hz, high_hz : float
+        Range searched [Hz], clipped to a tabulated material's range.
+
+    References
+    ----------
+    Dispersion of complex permeability (Snoek's law, DESIGN.md §4): above its relaxation
+    frequency a ferrite's |µ| falls roughly as 1/f.
+    """
+    rng = material.range_hz
+    if rng is not None:
+        low_hz, high_hz = max(low_hz, rng[0]), min(high_hz, rng[1])
+    f = np.geomspace(low_hz, high_hz, 600)
+    mag = np.abs(material.permeability(f))
+    below = np.flatnonzero(mag <= 0.5 * mag[0])
+    return float(f[below[0]]) if below.size else None
+
+
+def _would_pass(spec: SizeSpec, f, mus, r_per_m, *, turns_factor: float = 1.0, no_cp: bool = False,
+                heat: bool = False, **change) -> bool:
+    """Whether some candidate passes when the space is widened (a counterfactual search)."""
+    s = replace(spec, **change) if heat else replace(spec, drive=None, **change)
+    geo, _ = _geometry(s, turns_factor=turns_factor, limits=turns_factor == 1.0)
+    if no_cp:
+        geo = replace(geo, cp=np.zeros_like(geo.cp))
+    if heat:
+        return bool(_scan(s, geo, f, mus, r_per_m).passing)
+    return _scan(s, geo, f, mus, r_per_m, collect=False).best_score >= 1.0
+
+
+def _split_band(spec: SizeSpec, f, mus, r_per_m) -> str | None:
+    """Whether two chokes, one for each half of the band (split at its geometric middle), would do.
+
+    In series their resistances add and neither is negative, so if each half has a design whose
+    R meets the target there, the pair meets it over the whole band. Not claimed for |Z|, whose
+    reactances may cancel.
+    """
+    if spec.criterion != "resistance" or spec.band.high / spec.band.low < 1.5:
+        return None
+    mid = math.sqrt(spec.band.low * spec.band.high)
+    s = replace(spec, drive=None)
+    geo, _ = _geometry(s)
+    for part in (f <= mid, f >= mid):
+        if not _scan(s, geo, f[part], [mu[part] for mu in mus], r_per_m[part], collect=False).best_score >= 1.0:
+            return None
+    return (f"split the band at {_hz(mid)}: a choke for each part in series (resistances add, so the pair meets "
+            f"the target across the band); run size on each part")
+
+
+def _series_copies(spec: SizeSpec, closest: SizedDesign) -> str | None:
+    """Chokes in series add their impedances: k copies of the closest design reach k × its minimum."""
+    k = math.ceil(1.0 / closest.margin) if closest.margin > 0 else 0
+    if not 2 <= k <= 3:
+        return None
+    return (f"{k} of the closest design in series on the line: ≈ {k * closest.margin * spec.target_ohm:,.0f} Ω "
+            f"(impedances add when the chokes sit a short distance apart; common practice)")
+
+
+def _diagnose(spec: SizeSpec, closest: SizedDesign, f, mus, r_per_m) -> Diagnosis:
+    """Explain the shortfall by widening the space one way at a time — more cores, twice the
+    turns that fit, no stray capacitance — and naming the widening that lets a design pass."""
+    band = spec.band
+    d = closest.design
+    n = d.winding.turns
+    srf = closest.self_resonance_hz
+    f_min = closest.min_resistance_hz if spec.criterion == "resistance" else closest.min_impedance_hz
+    cond = spec.conductor
+    what = f"{cond.outer_diameter * 1e3:.3g} mm {'cable' if isinstance(cond, Cable) else 'wire'}"
+    more_cores = spec.max_cores * 2
+    bend_matters = isinstance(cond, Cable) and spec.bend_limit > 0
+    by_bend = bend_matters and _would_pass(spec, f, mus, r_per_m, min_bend_radius=0.0)
+    by_cores = not by_bend and _would_pass(spec, f, mus, r_per_m, max_cores=more_cores)
+    by_turns = not (by_bend or by_cores) and _would_pass(spec, f, mus, r_per_m, turns_factor=2.0)
+    by_cp = not (by_bend or by_cores or by_turns) and _would_pass(spec, f, mus, r_per_m, no_cp=True)
+    by_both = not (by_bend or by_cores or by_turns or by_cp) and _would_pass(spec, f, mus, r_per_m, turns_factor=2.0, no_cp=True)
+    at_low = f_min <= math.sqrt(band.low * band.high)
+    where = f"{spec.metric_name} is lowest at {_hz(f_min)} ({'the low end' if at_low else 'the top'} of the band)"
+    facts = [f"closest: {d.describe()}: {where}, {closest.margin * 100:.0f} % of the target"]
+    if srf is not None and d.cp > 0:
+        facts.append(f"its self-resonance is at {_hz(srf)} (Cp ≈ {d.cp * 1e12:.2g} pF)")
+    elif srf is not None:
+        facts.append(f"its reactance turns capacitive at {_hz(srf)}: the material's own resonance (one pass, no Cp)")
+    if not at_low:
+        f_half = half_permeability_hz(d.material)
+        if f_half is not None and f_half < band.high:
+            facts.append(f"{d.material.name}'s permeability collapses above {_hz(f_half)} (|µ| below half its initial value)")
+    bend_lim = isinstance(cond, Cable) and closest.bend_radius_m + 1e-12 < spec.bend_limit
+    limits: list[str] = []
+    relax: list[str] = []
+    if by_bend:
+        reason = (f"the bend limit: a {what} may not bend tighter than {spec.bend_limit * 1e3:.3g} mm "
+                  f"(--min-bend-radius), which allows only one pass through "
+                  f"{closest_bend_text(spec)}; with tighter bends a design would meet the target")
+        limits.append("bend")
+        relax += [f"a tighter bend (--min-bend-radius, e.g. 1x) if the cable allows it",
+                  "a thinner, more flexible cable for the choke section",
+                  "rings with a wider section (add them with --sizes)"]
+    elif by_cores:
+        reason = f"not enough core: stacks of up to {more_cores} cores would meet the target"
+        limits.append("cores")
+        relax.append(f"allow more stacked cores (--max-cores {more_cores})")
+    elif by_turns:
+        if bend_lim:
+            why = (f"the cable would bend tighter ({closest.bend_radius_m * 1e3:.3g} mm) than --min-bend-radius "
+                   f"({spec.bend_limit * 1e3:.3g} mm)")
+        elif spec.max_turns is not None and n >= spec.max_turns:
+            why = f"--max-turns {spec.max_turns} stops it"
+        else:
+            why = f"one layer of {what} holds only {closest.max_turns_fit} turns in a {d.core.id * 1e3:.3g} mm hole"
+        reason = f"not enough turns fit: {why}; twice the turns that fit would meet the target"
+        limits.append("turns")
+        relax += ["a thinner cable or wire", "rings with a larger hole (add them with --sizes)"]
+        if bend_lim:
+            relax.append(f"a tighter bend (--min-bend-radius below {spec.bend_limit * 1e3:.3g} mm) if the cable allows")
+        if spec.max_turns is not None:
+            relax.append("raise --max-turns")
+    elif by_cp:
+        reason = ("self-resonance: the winding's stray capacitance shunts it in the band; without that capacitance "
+                  "a design would meet the target")
+        limits.append("self-resonance")
+        relax.append("less capacitance: spaced turns or a thinner jacket, then measure Cp and check with "
+                     "`cmcheck predict --cp`")
+    elif by_both:
+        reason = ("the band is too wide for one choke: its low end needs more turns than fit and its top less stray "
+                  "capacitance than those turns bring")
+        limits += ["turns", "self-resonance"]
+    else:
+        reason = ("the target is far out of reach: even twice the turns that fit, with no stray capacitance, "
+                  "would not meet it")
+        limits.append("target")
+    split = _split_band(spec, f, mus, r_per_m)
+    if split:
+        relax.insert(0, split)
+    copies = _series_copies(spec, closest)
+    if copies:
+        relax.insert(0, copies)
+    if not at_low:
+        relax.append("a material that stays lossy higher up (see `cmcheck compare`)")
+    opt = "--target-r" if spec.criterion == "resistance" else "--target-z"
+    relax.append(f"lower {opt} to {closest.margin * spec.target_ohm:,.0f} Ω (what the closest design reaches)")
+    return Diagnosis(reason, tuple(relax), tuple(limits), tuple(facts))
+
+
+def closest_bend_text(spec: SizeSpec) -> str:
+    """How many of the searched core stacks the bend limit reduces to a single pass."""
+    geo, space = _geometry(spec)
+    return f"{space['stacks_bend_limited']} of the {space['stacks_that_fit']} core stacks the cable passes through"
+
+
+def _diagnose_heat(spec: SizeSpec, closest: SizedDesign, meeting: int, f, mus, r_per_m) -> Diagnosis:
+    h = closest.heat or {}
+    reason = (
+        f"{meeting} designs reach the target, but all would warm more than --max-rise {spec.max_rise_k:g} K at "
+        f"{spec.drive.power_w:g} W; the coolest rises {format_rise(h.get('temperature_rise_k', math.nan))} "
+        f"({h.get('dissipation_w', math.nan):.3g} W at {_hz(h.get('dissipation_hz'))})"
+    )
+    relax = []
+    more_cores = spec.max_cores * 2
+    if _would_pass(spec, f, mus, r_per_m, heat=True, max_cores=more_cores):
+        relax.append(f"more stacked cores spread the heat: --max-cores {more_cores} finds cool designs")
+    else:
+        relax.append("larger rings (--sizes): more surface to shed the heat")
+    if spec.drive.mode == "voltage":
+        relax.append("a higher target: with a voltage across it, a choke of higher impedance dissipates less")
+    else:
+        relax.append("check --cm-current: it is the current *with* the choke in place, usually far below the "
+                     "current without one; --feed-impedance gives a voltage bound instead")
+    relax += [
+        f"raise --max-rise above {spec.max_rise_k:g} K only if the material's datasheet allows the temperature",
+        "less power or a lower duty cycle (the estimate is for continuous carrier)",
+        "--keep-hot lists them anyway, flagged",
+    ]
+    facts = (f"closest: {closest.design.describe()}",)
+    return Diagnosis(reason, tuple(relax), ("heat",), facts)
+
+
+def _diagnose_nothing_fits(spec: SizeSpec) -> Diagnosis:
+    d = spec.conductor.outer_diameter
+    largest = float(np.max(spec.sizes.id))
+    return Diagnosis(
+        f"the {d * 1e3:.3g} mm conductor passes through none of the {len(spec.sizes)} core sizes "
+        f"(largest hole {largest * 1e3:.3g} mm)",
+        ("add sizes with a larger hole (--sizes)", "a thinner cable or wire"),
+        ("fit",),
+    )
