@@ -65,3 +65,4 @@ def main(argv: list[str] | None = None) -> int:
 
 # Register the commands (each module adds itself to ``app``).
 from . import predict  # noqa: E402,F401
+from . import size  # noqa: E402,F401
