@@ -60,7 +60,7 @@ def current_ratio(z_line, z_choke):
     V/Zline (Kirchhoff's voltage law); stated for feedline chokes in the project's DESIGN.md §4.
     """
     zl = np.asarray(z_line, dtype=complex)
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(all="ignore"):
         return np.abs(zl + np.asarray(z_choke, dtype=complex)) / np.abs(zl)
 
 
@@ -83,7 +83,7 @@ def _edge_minimum(p0, u, length, zc):
     qc = n1 * d0 - n0 * d1
     disc = np.maximum(qb * qb - 4.0 * qa * qc, 0.0)
     sq = np.sqrt(disc)
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(all="ignore"):
         small = np.abs(qa) <= 1e-12 * (np.abs(qb) + np.abs(qc) + 1e-300)
         r1 = np.where(small, -qc / qb, (-qb + sq) / (2.0 * qa))
         r2 = np.where(small, -qc / qb, (-qb - sq) / (2.0 * qa))
@@ -167,8 +167,9 @@ def worst_case_reduction(z_choke, r_max=DEFAULT_LINE_R_MAX, x_max=DEFAULT_LINE_X
         better = val < best
         best = np.where(better, val, best)
         worst_line = np.where(better, zl, worst_line)
-    # −Zc inside the closed region (a lossless or non-passive choke) cancels the line.
-    inside = (-zc.real >= 0) & (-zc.real <= r_max) & (np.abs(zc.imag) <= x_max)
+    # −Zc inside the closed region (a lossless or non-passive choke) cancels the line; Zc = 0
+    # changes nothing (ratio 1), which the edges already give.
+    inside = (-zc.real >= 0) & (-zc.real <= r_max) & (np.abs(zc.imag) <= x_max) & (zc != 0)
     best = np.where(inside, 0.0, best)
     worst_line = np.where(inside, -zc, worst_line)
     with np.errstate(divide="ignore"):

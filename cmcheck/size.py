@@ -618,15 +618,26 @@ def half_permeability_hz(material: Material, low_hz: float = 1e4, high_hz: float
 
 
 def _would_pass(spec: SizeSpec, f, mus, r_per_m, *, turns_factor: float = 1.0, no_cp: bool = False,
-                heat: bool = False, **change) -> bool:
-    """Whether some candidate passes when the space is widened (a counterfactual search)."""
+                heat: bool = False, **change) -> str | None:
+    """A design that passes when the space is widened (a counterfactual search), described in
+    a few words, or None when none does."""
     s = replace(spec, **change) if heat else replace(spec, drive=None, **change)
     geo, _ = _geometry(s, turns_factor=turns_factor, limits=turns_factor == 1.0)
     if no_cp:
         geo = replace(geo, cp=np.zeros_like(geo.cp))
+    # The heat check needs the full pass; otherwise the first design to pass ends it.
+    scan = _scan(s, geo, f, mus, r_per_m, collect=heat)
     if heat:
-        return bool(_scan(s, geo, f, mus, r_per_m).passing)
-    return _scan(s, geo, f, mus, r_per_m, collect=False).best_score >= 1.0
+        if not scan.passing:
+            return None
+        m, g = int(scan.passing[0][0][0]), int(scan.passing[0][1][0])
+    else:
+        if scan.best_score < 1.0:
+            return None
+        m, g = scan.best_at
+    i = int(geo.size_idx[g])
+    return (f"{geo.turns[g]} turns on {geo.stack[g]} × {s.sizes.label(i)} ({s.materials[m].name}; "
+            f"one layer holds {geo.n_fit[g]})")
 
 
 def _split_band(spec: SizeSpec, f, mus, r_per_m) -> str | None:
@@ -685,34 +696,29 @@ def _diagnose(spec: SizeSpec, closest: SizedDesign, f, mus, r_per_m) -> Diagnosi
         f_half = half_permeability_hz(d.material)
         if f_half is not None and f_half < band.high:
             facts.append(f"{d.material.name}'s permeability collapses above {_hz(f_half)} (|µ| below half its initial value)")
-    bend_lim = isinstance(cond, Cable) and closest.bend_radius_m + 1e-12 < spec.bend_limit
     limits: list[str] = []
     relax: list[str] = []
     if by_bend:
         reason = (f"the bend limit: a {what} may not bend tighter than {spec.bend_limit * 1e3:.3g} mm "
                   f"(--min-bend-radius), which allows only one pass through "
-                  f"{closest_bend_text(spec)}; with tighter bends a design would meet the target")
+                  f"{closest_bend_text(spec)}; with tighter bends a design would meet the target, e.g. {by_bend}")
         limits.append("bend")
         relax += [f"a tighter bend (--min-bend-radius, e.g. 1x) if the cable allows it",
                   "a thinner, more flexible cable for the choke section",
                   "rings with a wider section (add them with --sizes)"]
     elif by_cores:
-        reason = f"not enough core: stacks of up to {more_cores} cores would meet the target"
+        reason = f"not enough core: stacks of up to {more_cores} cores would meet the target, e.g. {by_cores}"
         limits.append("cores")
         relax.append(f"allow more stacked cores (--max-cores {more_cores})")
     elif by_turns:
-        if bend_lim:
-            why = (f"the cable would bend tighter ({closest.bend_radius_m * 1e3:.3g} mm) than --min-bend-radius "
-                   f"({spec.bend_limit * 1e3:.3g} mm)")
-        elif spec.max_turns is not None and n >= spec.max_turns:
-            why = f"--max-turns {spec.max_turns} stops it"
+        if spec.max_turns is not None:
+            why = f"--max-turns {spec.max_turns} and one layer of {what} through the hole limit the turns"
         else:
-            why = f"one layer of {what} holds only {closest.max_turns_fit} turns in a {d.core.id * 1e3:.3g} mm hole"
-        reason = f"not enough turns fit: {why}; twice the turns that fit would meet the target"
+            why = f"one layer of {what} through the hole limits the turns"
+        reason = (f"not enough turns fit: {why}; with up to twice the turns that fit a design would meet the "
+                  f"target, e.g. {by_turns}")
         limits.append("turns")
         relax += ["a thinner cable or wire", "rings with a larger hole (add them with --sizes)"]
-        if bend_lim:
-            relax.append(f"a tighter bend (--min-bend-radius below {spec.bend_limit * 1e3:.3g} mm) if the cable allows")
         if spec.max_turns is not None:
             relax.append("raise --max-turns")
     elif by_cp:

@@ -151,17 +151,20 @@ def _render_size(result: SizeResult, band_text: str) -> None:
     designs = result.designs
     if designs:
         console.print("cost: total core volume, then turns, then margin; cheapest distinct designs:")
-        cols = ["#", "material", "core OD×ID×H [mm]", "cores", "turns", f"min {s.metric_name} [Ω]", "at", "margin",
-                "SRF", "length [m]"]
+        length = "cable [m]" if isinstance(cond, Cable) else "wire [m]"
+        cols = ["#", "material", "n × OD×ID×H [mm]", "turns", f"min {s.metric_name} [Ω]", "at", "margin", "SRF", length]
         if s.drive is not None:
             cols += ["P [W]", "ΔT [K]", "B [mT]"]
         t = table(*(escape(c) for c in cols))
         t.columns[2].justify = "left"
+        # One space between columns keeps the heat columns within a 110-column pipe.
+        t.padding = (0, 1, 0, 0)
         for i, d in enumerate(designs, 1):
             v = d.min_resistance_ohm if s.criterion == "resistance" else d.min_impedance_ohm
             hz = d.min_resistance_hz if s.criterion == "resistance" else d.min_impedance_hz
-            row = [str(i), d.design.material.name, f"{d.kind} {_core_text(d.design)}", str(d.core.stack),
-                   str(d.design.winding.turns), f"{v:,.0f}", format_quantity(hz, "Hz", 3), _pct(d.margin),
+            core = f"{d.core.stack} × {_core_text(d.design)}" + (" sleeve" if d.kind == "sleeve" else "")
+            row = [str(i), d.design.material.name, core, str(d.design.winding.turns), f"{v:,.0f}",
+                   format_quantity(hz, "Hz", 3), _pct(d.margin),
                    format_quantity(d.self_resonance_hz, "Hz", 3) if d.self_resonance_hz else "–",
                    f"{d.design.conductor_length:.2f}"]
             if d.heat is not None:
@@ -173,7 +176,7 @@ def _render_size(result: SizeResult, band_text: str) -> None:
         console.print(f"check #1 in full: {_predict_command(designs[0], band_text, cond)}")
         notes = [
             "SRF uses the single-layer Cp estimate; real windings and leads often add more: measure, then "
-            "`cmcheck predict --cp`. Length is the conductor in the turns, leads extra.",
+            "`cmcheck predict --cp`. Conductor length is for the turns only: add the leads.",
         ]
         if s.drive is not None:
             notes.append("P and ΔT: worst frequency in the band; ΔT from McLyman's still-air surface formula; B: peak flux.")
