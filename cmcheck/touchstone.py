@@ -145,12 +145,66 @@ def parse_touchstone_bytes(data: bytes, name: str, *, z0: float | None = None) -
 def parse_touchstone_text(text: str, name: str, *, z0: float | None = None) -> SParameters:
     """Validate and parse Touchstone text; ``name`` gives the extension and names the file in messages."""
     ext = Path(name).suffix.lower()
-    lines = text.splitlines()
-    layout = _scan(lines, name, ext)
-    f, s, file_z0 = _parse_with_skrf(lines, layout, name, ext)
+    parsed = _fast_parse(text, name, ext)
+    if parsed is None:
+        lines = text.splitlines()
+        layout = _scan(lines, name, ext)
+        parsed = _parse_with_skrf(lines, layout, name, ext)
+    f, s, file_z0 = parsed
     z0_used = _reference_impedance(file_z0, name) if z0 is None else _check_z0(z0, name)
     f, s, n_nonfinite, n_overlap = _clean_sweep(f, s, name)
     return SParameters(name, f, s, z0_used, n_overlap, n_nonfinite)
+
+
+# First bytes that can start a data line: digits, sign, point, and "nan"/"inf".
+_DATA_START = np.zeros(256, bool)
+_DATA_START[np.frombuffer(b"0123456789+-.nNiI", np.uint8)] = True
+_OTHER_START = np.zeros(256, bool)
+_OTHER_START[np.frombuffer(b"!#\r\n", np.uint8)] = True
+
+
+def _count_data_lines(text: str) -> int | None:
+    """Number of data lines of a plain version-1 file, or None when the quick count is unsure.
+
+    Only the first byte of each line is looked at (vectorised): that is exact for files whose
+    lines start at the first column, which is what instruments write; anything else (leading
+    blanks, keywords, stray text) is left to the line-by-line scan.
+    """
+    b = np.frombuffer(text.encode("utf-8", "replace"), np.uint8)
+    starts = b[np.concatenate(([0], np.flatnonzero(b[:-1] == 10) + 1))]
+    data = _DATA_START[starts]
+    if not np.all(data | _OTHER_START[starts]):
+        return None
+    return int(np.count_nonzero(data))
+
+
+def _fast_parse(text: str, name: str, ext: str):
+    """Parse a plain 1- or 2-port file in one pass, verified by its count of data lines.
+
+    scikit-rf takes one frequency per data line of a 1- or 2-port file; a line with too few or
+    too many numbers shifts that alignment and loses a point, so agreement of the two counts
+    (with scikit-rf's own check that the numbers fill whole points) shows the line structure is
+    sound. Any disagreement, or a parser error, goes to the line-by-line scan, which explains it.
+    """
+    if ext not in (".s1p", ".s2p"):
+        return None
+    n_data = _count_data_lines(text)
+    if not n_data:
+        return None
+    fid = io.StringIO(text)
+    fid.name = name
+    from skrf.io.touchstone import Touchstone  # heavy import kept off the CLI start-up path
+
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            ts = Touchstone(fid)
+    except Exception:  # noqa: BLE001 - the slow path finds and words the problem
+        return None
+    f = np.asarray(ts.f, dtype=float)
+    if f.size != n_data or ts.noise is not None:
+        return None
+    return f, np.asarray(ts.s, dtype=complex), np.asarray(ts.z0)
 
 
 @dataclass
