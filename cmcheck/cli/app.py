@@ -65,4 +65,5 @@ def main(argv: list[str] | None = None) -> int:
 
 # Register the commands (each module adds itself to ``app``).
 from . import predict  # noqa: E402,F401
+from . import extract  # noqa: E402,F401
 from . import size  # noqa: E402,F401
