@@ -153,11 +153,12 @@ def _render_size(result: SizeResult, band_text: str) -> None:
         console.print("cost: total core volume, then turns, then margin; cheapest distinct designs:")
         length = "cable [m]" if isinstance(cond, Cable) else "wire [m]"
         cols = ["#", "material", "n × OD×ID×H [mm]", "turns", f"min {s.metric_name} [Ω]", "at", "margin", "SRF", length]
-        if s.drive is not None:
-            cols += ["P [W]", "ΔT [K]", "B [mT]"]
         t = table(*(escape(c) for c in cols))
         t.columns[2].justify = "left"
-        # One space between columns keeps the heat columns within a 110-column pipe.
+        # Dimensions and frequencies must not be cut; let headers wrap on narrow terminals instead.
+        for i in (1, 2, 5, 7):
+            t.columns[i].no_wrap = True
+        # One space between columns keeps the table within 80 columns.
         t.padding = (0, 1, 0, 0)
         for i, d in enumerate(designs, 1):
             v = d.min_resistance_ohm if s.criterion == "resistance" else d.min_impedance_ohm
@@ -167,19 +168,24 @@ def _render_size(result: SizeResult, band_text: str) -> None:
                    format_quantity(hz, "Hz", 3), _pct(d.margin),
                    format_quantity(d.self_resonance_hz, "Hz", 3) if d.self_resonance_hz else "–",
                    f"{d.design.conductor_length:.2f}"]
-            if d.heat is not None:
-                h = d.heat
-                row += [_w(h["dissipation_w"]), _dt(h["temperature_rise_k"]) + (" hot" if h["too_hot"] else ""),
-                        f"{h['peak_flux_density_t'] * 1e3:.2g}"]
             t.add_row(*row)
         console.print(t)
+        if s.drive is not None:
+            console.print(f"heat at the worst frequency in the band (limit ΔT ≤ {s.max_rise_k:g} K):")
+            h_t = table(*(escape(c) for c in ("#", "P [W]", "at", "ΔT [K]", "B peak [mT]", "at ")))
+            for i, d in enumerate(designs, 1):
+                h = d.heat
+                h_t.add_row(str(i), _w(h["dissipation_w"]), format_quantity(h["dissipation_hz"], "Hz", 3),
+                            _dt(h["temperature_rise_k"]) + (" too hot" if h["too_hot"] else ""),
+                            f"{h['peak_flux_density_t'] * 1e3:.2g}", format_quantity(h["peak_flux_hz"], "Hz", 3))
+            console.print(h_t)
         console.print(f"check #1 in full: {_predict_command(designs[0], band_text, cond)}")
         notes = [
             "SRF uses the single-layer Cp estimate; real windings and leads often add more: measure, then "
             "`cmcheck predict --cp`. Conductor length is for the turns only: add the leads.",
         ]
         if s.drive is not None:
-            notes.append("P and ΔT: worst frequency in the band; ΔT from McLyman's still-air surface formula; B: peak flux.")
+            notes.append("ΔT from McLyman's still-air surface formula (empirical; a fan or an enclosure changes it).")
         print_notes(notes)
         return
     diag = result.diagnosis
