@@ -40,3 +40,20 @@ __all__ = [
     "sleeve",
     "winding_impedance",
 ]
+
+# Sizing and comparing (the search itself is cmcheck.size.size(SizeSpec(...))).
+from .compare import compare_materials, worst_case_reduction  # noqa: E402
+from .ringsizes import RingSizes, builtin_ring_sizes, load_ring_sizes  # noqa: E402
+from .size import SizeResult, SizeSpec  # noqa: E402
+from .thermal import Drive  # noqa: E402
+
+__all__ += [
+    "Drive",
+    "RingSizes",
+    "SizeResult",
+    "SizeSpec",
+    "builtin_ring_sizes",
+    "compare_materials",
+    "load_ring_sizes",
+    "worst_case_reduction",
+]
