@@ -35,8 +35,8 @@ __all__ = [
 #: seen from the feed point, is a lossy line of unknown length: its resistance is usually
 #: tens of ohms and its reactance anywhere within about ±1 kΩ away from its own resonances.
 #: Common practice, no published source.
-DEFAULT_LINE_R_MAX = 100.0
-DEFAULT_LINE_X_MAX = 1000.0
+DEFAULT_LINE_R_MAX = 100.0  # common practice, no published source
+DEFAULT_LINE_X_MAX = 1000.0  # common practice, no published source
 
 
 def current_ratio(z_line, z_choke):

@@ -52,15 +52,15 @@ __all__ = [
 #: diameter. Cable makers quote 5–10 × OD for installed runs, yet 5 mm coax is routinely
 #: wound on 61 mm rings (bend ≈ 1.8 × OD) without harm; 1.5 × keeps that and excludes tighter
 #: bends that kink coax. Common practice, no published source.
-DEFAULT_BEND_RATIO = 1.5
+DEFAULT_BEND_RATIO = 1.5  # common practice, no published source
 
 #: Default target: at least 1 kΩ resistive across the band. Common practice, no published
 #: source (see DESIGN.md §4 "Why resistance matters").
-DEFAULT_TARGET_OHM = 1000.0
+DEFAULT_TARGET_OHM = 1000.0  # common practice, no published source
 
 #: Most identical cores stacked by default: beyond four, a longer choke or a second choke in
 #: series is usually easier to build. Common practice, no published source.
-DEFAULT_MAX_CORES = 4
+DEFAULT_MAX_CORES = 4  # common practice, no published source
 
 # About 400 k complex points per chunk: large enough that numpy's per-call overhead is small,
 # small enough (≈ 6 MB per temporary) to stay in cache-friendly territory on small machines.

@@ -31,7 +31,7 @@ __all__ = [
 #: Default limit on the core's temperature rise above ambient [K]. Suppression ferrites lose
 #: permeability well below their Curie point (often 130–200 °C), and a choke outdoors sits in
 #: sunshine: 40 K above ambient keeps a wide margin. Common practice, no published source.
-DEFAULT_MAX_RISE_K = 40.0
+DEFAULT_MAX_RISE_K = 40.0  # common practice, no published source
 
 
 def feed_point_voltage(power_w, feed_impedance_ohm):
