@@ -67,41 +67,44 @@ def current_ratio(z_line, z_choke):
 def _edge_minimum(p0, u, length, zc):
     """Minimum of |Zl + Zc|²/|Zl|² on the segment Zl = p0 + t·u, 0 ≤ t ≤ length (|u| = 1).
 
-    Numerator and denominator are quadratics in t with leading coefficient 1, so the
-    derivative of their ratio vanishes where a quadratic vanishes:
-    (d1 − n1)t² + 2(d0 − n0)t + (n1·d0 − n0·d1) = 0. The minimum is at one of its real roots
-    inside the segment or at an end; evaluating clipped roots as well is harmless, since a
-    clipped point still lies on the segment.
+    Measured along the line from the foot of the perpendicular from Zl = 0 (s = t − t0), the
+    denominator is s² + g² and the numerator (s − δ)² + h², with g and h the signed distances
+    of 0 and −Zc from the line and δ the offset of −Zc's foot. The ratio is stationary where
+    δ·s² + (g² − h² − δ²)·s − δ·g² = 0 (the cubic terms cancel). Working with δ and h taken
+    directly from Zc keeps this well conditioned even when |Zc| is many orders below the
+    region. The minimum is at a real root inside the segment or at an end; evaluating clipped
+    roots as well is harmless, since a clipped point still lies on the segment.
     """
-    a_pt = p0 + zc
-    n1 = 2.0 * (a_pt * np.conj(u)).real
-    n0 = np.abs(a_pt) ** 2
-    d1 = 2.0 * (p0 * np.conj(u)).real
-    d0 = np.abs(p0) ** 2
-    qa = d1 - n1
-    qb = 2.0 * (d0 - n0)
-    qc = n1 * d0 - n0 * d1
-    disc = np.maximum(qb * qb - 4.0 * qa * qc, 0.0)
-    sq = np.sqrt(disc)
+    ub = np.conj(u)
+    t0 = -(p0 * ub).real
+    g = (p0 * ub).imag
+    w = zc * ub
+    delta = -w.real
+    h = g + w.imag
+    qa = delta
+    qb = g * g - h * h - delta * delta
+    qc = -delta * g * g
     with np.errstate(all="ignore"):
-        small = np.abs(qa) <= 1e-12 * (np.abs(qb) + np.abs(qc) + 1e-300)
-        r1 = np.where(small, -qc / qb, (-qb + sq) / (2.0 * qa))
-        r2 = np.where(small, -qc / qb, (-qb - sq) / (2.0 * qa))
-    ts = [np.zeros_like(n0), np.full_like(n0, length)]
-    for r in (r1, r2):
-        ts.append(np.clip(np.nan_to_num(r, nan=0.0, posinf=length, neginf=0.0), 0.0, length))
-    best = np.full(n0.shape, np.inf)
-    best_t = np.zeros(n0.shape)
-    for t in ts:
-        zl = p0 + t * u
-        num = np.abs(zl + zc) ** 2
-        den = np.abs(zl) ** 2
-        with np.errstate(divide="ignore", invalid="ignore"):
+        # Numerically stable roots: q = −(b + sign(b)·√disc)/2, roots q/a and c/q.
+        sq = np.sqrt(np.maximum(qb * qb - 4.0 * qa * qc, 0.0))
+        q = -0.5 * (qb + np.where(qb >= 0, sq, -sq))
+        roots = (q / qa, qc / q)
+    lo, hi = -t0, length - t0
+    candidates = [np.full(np.shape(w), lo), np.full(np.shape(w), hi)]
+    for r in roots:
+        candidates.append(np.clip(np.nan_to_num(r, nan=lo, posinf=hi, neginf=lo), lo, hi))
+    best = np.full(np.shape(w), np.inf)
+    best_s = np.full(np.shape(w), lo)
+    for sv in candidates:
+        num = (sv - delta) ** 2 + h * h
+        den = sv * sv + g * g
+        with np.errstate(all="ignore"):
             val = np.where(den > 0, num / den, np.inf)
         better = val < best
         best = np.where(better, val, best)
-        best_t = np.where(better, t, best_t)
-    return best, p0 + best_t * u
+        best_s = np.where(better, sv, best_s)
+    # The foot of the perpendicular is j·g·u exactly; adding s there keeps tiny Zl accurate.
+    return best, (1j * g + best_s) * u
 
 
 def worst_case_reduction(z_choke, r_max=DEFAULT_LINE_R_MAX, x_max=DEFAULT_LINE_X_MAX, *, return_line=False):
