@@ -144,7 +144,8 @@ def _render_size(result: SizeResult, band_text: str) -> None:
         f"searched {result.candidates_searched:,} candidates ({sp['materials']} materials × {sp['sizes']} sizes × "
         f"1–{sp['max_cores']} cores × turns that fit, up to {sp['max_turns']}) in {result.elapsed_s:.2f} s: "
         f"{result.meeting_target:,} meet the target"
-        + (f", {result.too_hot:,} of them warmer than {s.max_rise_k:g} K" if s.drive else "")
+        + ((f", {result.too_hot:,} of them warmer than {s.max_rise_k:g} K" if result.too_hot
+            else f", none warmer than {s.max_rise_k:g} K") if s.drive and result.meeting_target else "")
     )
     if s.drive is not None:
         console.print(f"heat: {s.drive.describe()}")
