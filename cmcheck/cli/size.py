@@ -372,7 +372,7 @@ def compare_command(
     if worst.worst_case_reduction_db < 0:
         zl = worst.worst_case_line_ohm
         notes.append(f"e.g. {worst.name} at {format_quantity(worst.worst_case_hz, 'Hz', 3)} with Zline = "
-                     f"{zl.real:.0f} {'+' if zl.imag >= 0 else '−'} j{abs(zl.imag):.0f} Ω: "
+                     f"{abs(zl.real) if abs(zl.real) < 0.5 else zl.real:.0f} {'+' if zl.imag >= 0 else '−'} j{abs(zl.imag):.0f} Ω: "
                      f"{worst.worst_case_reduction_db:+.1f} dB")
     notes.append(SAFETY_NOTES[0])
     print_notes(notes)
