@@ -286,9 +286,7 @@ def size_command(
         result = run_size(spec, progress=bar)
     finally:
         bar.close()
-    _render_size(result, band)
-    if p is not None:
-        print_notes(SAFETY_NOTES)
+    # Files first: a closed pipe (| head) must not cost the user the JSON or the plot.
     if json_out:
         write_json(json_out, result.to_dict())
     if plot_out:
@@ -298,6 +296,9 @@ def size_command(
         if curves:
             plot_curves(plot_out, curves, band=b, quantities=("R",), target_ohm=target,
                         title=f"{'designs' if result.designs else 'closest design'} for {spec.metric_name} ≥ {target:g} Ω, {b}")
+    _render_size(result, band)
+    if p is not None:
+        print_notes(SAFETY_NOTES)
     if not result.ok:
         raise typer.Exit(EXIT_LIMIT_FAILED)
 
@@ -355,6 +356,12 @@ def compare_command(
     check_outputs([json_out, plot_out], _material_files(materials))
     result = compare_materials(mats, design.core, design.winding, b, points=points, line_r_max=r_max, line_x_max=x_max)
     generic = design.describe().rsplit(",", 1)[0]
+    # Files first: a closed pipe (| head) must not cost the user the JSON or the plot.
+    if json_out:
+        write_json(json_out, result.to_dict())
+    if plot_out:
+        plot_curves(plot_out, comparison_curves(result), band=b, quantities=("R",),
+                    title=f"R(f): {generic}")
     console.print(f"[bold]{generic}, over {b}[/bold]")
     console.print(f"line's own common-mode impedance: 0 ≤ R ≤ {r_max:g} Ω, |X| ≤ {x_max:g} Ω; ranked by the worst case")
     t = table(*(escape(c) for c in ("#", "material", "min R [Ω]", "at", "mean R [Ω]", "peak R at", "R>|X| [%]",
@@ -376,8 +383,3 @@ def compare_command(
                      f"{worst.worst_case_reduction_db:+.1f} dB")
     notes.append(SAFETY_NOTES[0])
     print_notes(notes)
-    if json_out:
-        write_json(json_out, result.to_dict())
-    if plot_out:
-        plot_curves(plot_out, comparison_curves(result), band=b, quantities=("R",),
-                    title=f"R(f): {generic}")
