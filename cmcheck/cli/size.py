@@ -291,7 +291,7 @@ def size_command(
         write_json(json_out, result.to_dict())
     if plot_out:
         shown = result.designs or ((result.closest,) if result.closest else ())
-        curves = [_context_curve(d.design, b, f"#{i} {d.design.material.name}, {d.core.stack} × {_core_text(d.design)} mm, {d.design.winding.turns} turns")
+        curves = [_context_curve(d.design, b, f"#{i} {d.design.material.name} {d.core.stack}×({_core_text(d.design)}) N={d.design.winding.turns}")
                   for i, d in enumerate(shown, 1)]
         if curves:
             plot_curves(plot_out, curves, band=b, quantities=("R",), target_ohm=target,
