@@ -115,7 +115,8 @@ class Summary:
 
 
 def _argmin(values: np.ndarray, f: np.ndarray) -> tuple[float | None, float | None]:
-    ok = np.isfinite(values)
+    # −inf is a real minimum (a CMRR with no differential transmission at all); NaN is not.
+    ok = ~np.isnan(values)
     if not ok.any():
         return None, None
     i = int(np.argmin(np.where(ok, values, np.inf)))

@@ -8,14 +8,15 @@ Three ways of measuring an impedance Z with a two-port analyser of reference imp
   milliohms;
 * **reflection** (Z across port 1): Z = Z0·(1 + S11)/(1 − S11), best near Z0.
 
-Each point carries an estimate of its relative error from two instrument figures, the noise
-floor and the residual calibration error, and is *valid* when that estimate is within a
-tolerance and the point is passive. Everything here is a vectorised function of numpy arrays.
+Each point carries an estimate of its relative error and a validity mask
+(:mod:`cmcheck.validity`); open/short fixture residuals can be removed first. Everything here
+is a vectorised function of numpy arrays.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+import warnings
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -23,6 +24,7 @@ from .balance import Balance, common_mode_series_z, four_port_balance, legs_bala
 from .curve import ImpedanceCurve
 from .errors import CmcheckWarning, MeasurementError, TouchstoneError
 from .touchstone import SParameters
+from .validity import Accuracy, Validity, balance_validity, impedance_validity, reflection_error, through_error
 
 __all__ = [
     "METHODS",
@@ -33,12 +35,10 @@ __all__ = [
     "extract",
     "extract_legs",
     "open_short_compensation",
-    "reflection_error",
     "reflection_z",
     "resolve_method",
     "series_through_z",
     "shunt_through_z",
-    "through_error",
 ]
 
 #: Methods by name; ``auto`` picks by port count (1 → reflect, 2 → series, 3/4 → mixed).
@@ -120,80 +120,6 @@ def reflection_z(s11, z0):
         return z0 * (1.0 + s11) / (1.0 - s11)
 
 
-def through_error(s21, cal_error, noise):
-    """Estimated relative error |δZ/Z| of a series- or shunt-through point, and its noise share.
-
-    Parameters
-    ----------
-    s21 : array_like of complex
-        Measured transmission [dimensionless].
-    cal_error : float
-        Residual relative error of S21 after calibration (tracking) [dimensionless].
-    noise : float
-        Noise floor as a linear magnitude, 10^(floor_dB/20) [dimensionless].
-
-    Returns
-    -------
-    total, from_noise : numpy.ndarray
-        Relative errors [dimensionless]: ε/|1 − S21| + n/(|S21|·|1 − S21|), and the noise term.
-
-    Notes
-    -----
-    For both through methods |dZ/Z| = |dS21|/(|S21|·|1 − S21|). A tracking error is relative
-    (dS21 = ε·S21) and an additive noise floor is absolute (dS21 = n). So series-through loses
-    accuracy at low Z (|1 − S21| → 0, "too small to resolve") and at high Z near the noise
-    floor (Zmax ≈ 2·Z0/n); shunt-through the other way round. With ε = 0.01 and a −80 dB floor
-    this gives 1.5 % at 5 kΩ series-through.
-
-    References
-    ----------
-    First-order error propagation through Z = 2·Z0·(1 − S21)/S21 (Pozar, Table 4.2); the
-    error-model split into tracking and noise terms follows Keysight, *Impedance Measurement
-    Handbook*, 6th ed., 2016, §2.4 (measurement-range charts of the through methods).
-    """
-    s21 = np.asarray(s21, dtype=complex)
-    a = np.abs(s21)
-    d = np.abs(1.0 - s21)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        from_noise = noise / (a * d)
-        total = cal_error / d + from_noise
-    return np.nan_to_num(total, nan=np.inf), np.nan_to_num(from_noise, nan=np.inf)
-
-
-def reflection_error(s11, cal_error, noise):
-    """Estimated relative error |δZ/Z| of a reflection point, and its noise share.
-
-    Parameters
-    ----------
-    s11 : array_like of complex
-        Measured reflection coefficient [dimensionless].
-    cal_error : float
-        Residual additive error of S11 after calibration (directivity, source match) [dimensionless].
-    noise : float
-        Noise floor as a linear magnitude [dimensionless].
-
-    Returns
-    -------
-    total, from_noise : numpy.ndarray
-        2·(ε + n)/|1 − S11²| and 2·n/|1 − S11²| [dimensionless].
-
-    Notes
-    -----
-    dZ/Z = 2·dΓ/((1 + Γ)(1 − Γ)): smallest at Z = Z0 (2·ε) and growing without bound as Z
-    goes to 0 or ∞ ("too far from Z0"). With ε = 0.01 and a 10 % tolerance the useful range is
-    about Z0/18 … 18·Z0 for a resistor.
-
-    References
-    ----------
-    First-order error propagation through Pozar eq. (2.35); Keysight, *Impedance Measurement
-    Handbook*, 6th ed., 2016, §2.4: reflection accuracy is best near Z0 and degrades far from it.
-    """
-    s11 = np.asarray(s11, dtype=complex)
-    d = np.abs(1.0 - s11 * s11)
-    with np.errstate(divide="ignore"):
-        return 2.0 * (cal_error + noise) / d, 2.0 * noise / d
-
-
 def open_short_compensation(zxm, zs, yo):
     """Remove a fixture's residual impedance and stray admittance from a measured impedance.
 
@@ -221,111 +147,6 @@ def open_short_compensation(zxm, zs, yo):
     d = np.asarray(zxm, dtype=complex) - np.asarray(zs, dtype=complex)
     with np.errstate(divide="ignore", invalid="ignore"):
         return d / (1.0 - d * np.asarray(yo, dtype=complex))
-
-
-@dataclass(frozen=True)
-class Accuracy:
-    """What the instrument can resolve, and how much error a valid point may carry.
-
-    Parameters
-    ----------
-    floor_db : float
-        Noise floor of transmission and reflection [dB]; −80 dB suits a low-cost analyser
-        at a moderate IF bandwidth (common practice, no published source).
-    cal_error : float
-        Residual error after the user's calibration [dimensionless]: relative for S21,
-        additive for S11. 0.01 (−40 dB, ≈0.09 dB / 0.6°) is typical of a low-cost analyser
-        (from memory).
-    max_error : float
-        Largest estimated relative error of Z for a valid point [dimensionless].
-    cmrr_error_db : float
-        Largest estimated error of a valid CMRR point [dB].
-    """
-
-    floor_db: float = -80.0
-    cal_error: float = 0.01
-    max_error: float = 0.10
-    cmrr_error_db: float = 3.0
-
-    def __post_init__(self) -> None:
-        if not (np.isfinite(self.floor_db) and self.floor_db < 0):
-            raise MeasurementError(f"--floor-db {self.floor_db:g}: the noise floor must be below 0 dB")
-        if not (0 <= self.cal_error < 1):
-            raise MeasurementError(f"calibration error {self.cal_error:g} must be between 0 and 1")
-        if not (0 < self.max_error <= 10):
-            raise MeasurementError(f"--max-error {100 * self.max_error:g} % must be above 0")
-
-    @property
-    def noise(self) -> float:
-        """Noise floor as a linear magnitude [dimensionless]."""
-        return 10.0 ** (self.floor_db / 20.0)
-
-
-@dataclass(frozen=True, eq=False)
-class Validity:
-    """Why each point can or cannot be trusted.
-
-    Attributes
-    ----------
-    relative_error : numpy.ndarray
-        Estimated relative error of Z (or of |Scs21| for a balun) [dimensionless].
-    noise_floor : numpy.ndarray of bool
-        Beyond tolerance, mostly because the signal is near the noise floor.
-    resolution : numpy.ndarray of bool
-        Beyond tolerance, mostly because of the calibration residual: for the through methods
-        the change from a plain through is too small to resolve, for reflection Z is too far
-        from Z0.
-    not_passive : numpy.ndarray of bool
-        |S| > 1, or R < 0 by more than the error estimate.
-    no_fixture_data : numpy.ndarray of bool
-        Outside the frequency range of the open/short fixture measurements.
-    """
-
-    relative_error: np.ndarray
-    noise_floor: np.ndarray
-    resolution: np.ndarray
-    not_passive: np.ndarray
-    no_fixture_data: np.ndarray = field(default=None)  # type: ignore[assignment]
-
-    def __post_init__(self) -> None:
-        if self.no_fixture_data is None:
-            object.__setattr__(self, "no_fixture_data", np.zeros(self.noise_floor.shape, bool))
-
-    @property
-    def valid(self) -> np.ndarray:
-        """Points with none of the problems [bool]."""
-        return ~(self.noise_floor | self.resolution | self.not_passive | self.no_fixture_data)
-
-    def excluded(self) -> dict[str, int]:
-        """Count of excluded points per reason (a point counts once, under its first reason)."""
-        out: dict[str, int] = {}
-        taken = np.zeros(self.noise_floor.shape, bool)
-        for key, mask in (("not_passive", self.not_passive), ("no_fixture_data", self.no_fixture_data),
-                          ("noise_floor", self.noise_floor), ("resolution", self.resolution)):
-            n = int(np.count_nonzero(mask & ~taken))
-            taken |= mask
-            if n:
-                out[key] = n
-        return out
-
-    def subset(self, mask) -> "Validity":
-        """The same record at the points where ``mask`` is True."""
-        return Validity(self.relative_error[mask], self.noise_floor[mask], self.resolution[mask],
-                        self.not_passive[mask], self.no_fixture_data[mask])
-
-    def __and__(self, other: "Validity") -> "Validity":
-        return Validity(np.maximum(self.relative_error, other.relative_error), self.noise_floor | other.noise_floor,
-                        self.resolution | other.resolution, self.not_passive | other.not_passive,
-                        self.no_fixture_data | other.no_fixture_data)
-
-
-def _validity(z, err, err_noise, active, tol, no_fixture=None) -> Validity:
-    beyond = ~(err <= tol)  # NaN/inf count as beyond
-    noisy = beyond & (err_noise >= err - err_noise)
-    with np.errstate(invalid="ignore"):
-        # A slightly negative R inside the error estimate is noise, not a fault.
-        negative_r = np.asarray(z).real < -err * np.abs(z)
-    return Validity(err, noisy, beyond & ~noisy, active | negative_r, no_fixture)
 
 
 @dataclass(frozen=True, eq=False)
@@ -540,11 +361,9 @@ def extract(
         if outside.all():
             raise MeasurementError(f"{sweep.source}: no point lies inside the open/short fixture sweeps")
         if outside.any():
-            import warnings
-
             warnings.warn(f"{sweep.source}: {int(outside.sum())} points lie outside the fixture sweeps and are "
                           "marked not valid", CmcheckWarning, stacklevel=2)
-    validity = _validity(z, err, err_n, active, tol, outside)
+    validity = impedance_validity(z, err, err_n, active, tol, outside)
     curve = ImpedanceCurve(f, np.where(np.isfinite(z), z, np.nan), validity.valid, label=sweep.source)
     return Extraction(sweep.source, m, z0, f, validity, curve=curve, compensated=fixture is not None)
 
@@ -567,43 +386,19 @@ def _extract_mixed(sweep: SParameters, z0: float, accuracy: Accuracy, balanced_p
         u = ({0, 1, 2} - {p, q}).pop()
         bal = three_port_balance(f, s, u, p, q)
         used = np.stack([s[:, p, u], s[:, q, u]])
-        validity = _balance_validity(bal, used, accuracy)
+        validity = balance_validity(bal, used, accuracy)
         return Extraction(sweep.source, "mixed", z0, f, validity, balance=bal)
     p1, n1, p2, n2 = (k - 1 for k in ports)
     bal, mm = four_port_balance(f, s, (p1, n1), (p2, n2))
     used = np.stack([s[:, i, j] for i in (p2, n2) for j in (p1, n1)])
-    validity = _balance_validity(bal, used, accuracy)
+    validity = balance_validity(bal, used, accuracy)
     # The common-mode two-port is a series-through measurement referred to Z0/2.
     scc21 = mm[:, 3, 2]
     zcm = common_mode_series_z(scc21, z0)
     err, err_n = through_error(scc21, accuracy.cal_error, accuracy.noise)
-    validity = validity & _validity(zcm, err, err_n, np.abs(scc21) > 1.0, accuracy.max_error)
+    validity = validity & impedance_validity(zcm, err, err_n, np.abs(scc21) > 1.0, accuracy.max_error)
     curve = ImpedanceCurve(f, np.where(np.isfinite(zcm), zcm, np.nan), validity.valid, label=sweep.source)
     return Extraction(sweep.source, "mixed", z0, f, validity, curve=curve, balance=bal)
-
-
-def _balance_validity(bal: Balance, used: np.ndarray, accuracy: Accuracy) -> Validity:
-    """Validity of CMRR: the common-mode term must stand out of the legs' residual error and noise.
-
-    A residual relative error ε on each leg leaves up to ε·(|b_p| + |b_n|)/√2 in
-    Scs21 = (b_p + b_n)/√2, and noise adds n; the CMRR of a point is trusted while that is
-    small against |Scs21| (``Accuracy.cmrr_error_db``).
-    """
-    n, eps = accuracy.noise, accuracy.cal_error
-    c = np.abs(bal.common)
-    legs = (np.abs(bal.leg_p) + np.abs(bal.leg_n)) / np.sqrt(2.0)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        err_n = n / c
-        err = eps * legs / c + err_n
-    err, err_n = np.nan_to_num(err, nan=np.inf), np.nan_to_num(err_n, nan=np.inf)
-    tol = 10.0 ** (accuracy.cmrr_error_db / 20.0) - 1.0
-    beyond = ~(err <= tol)
-    # Legs near the floor make imbalance and CMRR meaningless whatever Scs21 is.
-    with np.errstate(divide="ignore"):
-        weak = (n / np.minimum(np.abs(bal.leg_p), np.abs(bal.leg_n))) > accuracy.max_error
-    noisy = (beyond & (err_n >= err - err_n)) | weak
-    active = np.any(np.abs(used) > 1.0, axis=0)
-    return Validity(err, noisy, beyond & ~noisy, active)
 
 
 def extract_legs(leg_p: SParameters, leg_n: SParameters, *, z0: float | None = None,
@@ -642,8 +437,6 @@ def extract_legs(leg_p: SParameters, leg_n: SParameters, *, z0: float | None = N
     if leg_n.frequency_hz.shape == f.shape and np.allclose(leg_n.frequency_hz, f, rtol=1e-9, atol=0):
         sn = leg_n.param(2, 1)
     else:
-        import warnings
-
         sn = _interp_complex(f, leg_n.frequency_hz, leg_n.param(2, 1))
         inside = np.isfinite(sn)
         if inside.sum() < 2:
@@ -652,6 +445,6 @@ def extract_legs(leg_p: SParameters, leg_n: SParameters, *, z0: float | None = N
                       f"({int(inside.sum())} common points)", CmcheckWarning, stacklevel=2)
         f, sp, sn = f[inside], sp[inside], sn[inside]
     bal = legs_balance(f, sp, sn)
-    validity = _balance_validity(bal, np.stack([sp, sn]), accuracy)
+    validity = balance_validity(bal, np.stack([sp, sn]), accuracy)
     return Extraction(f"{leg_p.source} + {leg_n.source}", "mixed", float(leg_p.z0 if z0 is None else z0),
                       f, validity, balance=bal)

@@ -261,7 +261,7 @@ def _scan(lines: list[str], name: str, ext: str) -> _Layout:
             noise = cnt == 5
             if noise.any():
                 first = int(np.argmax(noise))
-                if noise[first:].all():
+                if first > 0 and noise[first:].all():
                     bad = bad[:first]
                     idx, cnt = idx[:first], cnt[:first]
         if bad.any():

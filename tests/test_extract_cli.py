@@ -310,3 +310,57 @@ def test_real_batch_subprocess(real_dir):
                        capture_output=True, text=True)
     assert r.returncode == 1, r.stderr
     assert "Traceback" not in r.stderr and r.stderr.count("warning:") == 2
+
+
+def test_four_port_common_mode_impedance_and_cmrr(run_cli, tmp_path):
+    # Two uncoupled conductors each of series Z (circuit theory): the common mode sees Z/2
+    # (Bockelman & Eisenstadt common mode referred to Z0/2, series-through relation of Pozar).
+    z = _choke_z()
+    s21 = series_s21(z, Z0)
+    s = np.zeros((F.size, 4, 4), complex)
+    for a, b in ((0, 2), (1, 3)):
+        s[:, a, a] = s[:, b, b] = 1 - s21
+        s[:, a, b] = s[:, b, a] = s21
+    p = _snp(tmp_path / "pair.s4p", s)
+    j = tmp_path / "p.json"
+    code, out, err = run_cli("extract", p, "--json", j, "--band", "1-10MHz", "--target-r", "400")
+    assert code == 0, err
+    res = json.loads(j.read_text())["results"][0]
+    assert res["method"] == "mixed" and res["balance"] == "four-port"
+    assert np.allclose(res["resistance_ohm"], (z / 2).real, rtol=1e-8)
+    # No mode conversion and identical conductors: no imbalance.
+    assert np.allclose(res["amplitude_imbalance_db"], 0, atol=1e-9)
+
+
+def test_no_differential_transmission_fails_a_cmrr_limit(run_cli, tmp_path):
+    # Bockelman & Eisenstadt: S31 = S21 gives Sds21 = 0, CMRR = −∞ dB; that must fail a limit.
+    s21 = np.full(F.size, 0.5 + 0j)
+    a = _s2p(tmp_path / "a.s2p", None, s21=s21)
+    code, out, err = run_cli("extract", "--legs", a, a, "--target-cmrr", "10")
+    assert code == 1 and "FAIL" in out
+
+
+def test_cal_error_widens_or_narrows_validity(run_cli, tmp_path):
+    # First-order error model (cmcheck.validity): a smaller calibration residual resolves lower Z
+    # series-through; a 5 Ω point is invalid at 1 % and valid at 0.1 %.
+    f = np.array([1e6, 2e6, 3e6])
+    p = _s2p(tmp_path / "low.s2p", np.array([5.0, 50.0, 500.0]) + 0j, f=f)
+    for cal, expected in (("1", "2 of 3 points valid"), ("0.1", "3 of 3 points valid")):
+        code, out, err = run_cli("extract", p, "--cal-error", cal)
+        assert code == 0 and expected in out, out
+    assert run_cli("extract", p, "--max-error", "abc")[0] == 2
+
+
+def test_help_ranges_follow_the_error_model(run_cli):
+    # The ranges printed in the help come from cmcheck.validity with the default settings.
+    from cmcheck.validity import Accuracy, reflection_error, through_error
+
+    a = Accuracy()
+    z = np.geomspace(0.1, 1e7, 20001)
+    e_s, _ = through_error(2 * Z0 / (2 * Z0 + z), a.cal_error, a.noise)
+    e_r, _ = reflection_error((z - Z0) / (z + Z0), a.cal_error, a.noise)
+    ok_s, ok_r = z[e_s <= a.max_error], z[e_r <= a.max_error]
+    assert ok_s.min() == pytest.approx(11, rel=0.05) and ok_s.max() == pytest.approx(90e3, rel=0.05)
+    assert ok_r.min() == pytest.approx(2.8, rel=0.05) and ok_r.max() == pytest.approx(890, rel=0.05)
+    out = run_cli("extract", "--help")[1]
+    assert "11 Ω to 90 kΩ" in out and "2.8 Ω to 890 Ω" in out

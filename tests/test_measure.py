@@ -29,18 +29,16 @@ from cmcheck.balance import (
 from cmcheck.curve import series_s21
 from cmcheck.errors import MeasurementError, TouchstoneError
 from cmcheck.measure import (
-    Accuracy,
     Fixture,
     extract,
     extract_legs,
     open_short_compensation,
-    reflection_error,
     reflection_z,
     series_through_z,
     shunt_through_z,
-    through_error,
 )
 from cmcheck.touchstone import SParameters
+from cmcheck.validity import Accuracy, reflection_error, through_error
 
 F = np.geomspace(1e6, 100e6, 41)
 Z0 = 50.0

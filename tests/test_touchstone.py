@@ -195,3 +195,64 @@ def test_latin1_comment_is_read(tmp_path):
     p = tmp_path / "l.s1p"
     p.write_bytes("! 23 °C\n# Hz S RI R 50\n1e6 0.1 0\n2e6 0.2 0\n".encode("latin-1"))
     assert read_touchstone(p).frequency_hz.size == 2
+
+
+# --- the quick path and the line-by-line scan agree; damage never escapes as a crash ----------
+
+def _two_port_text(n=12):
+    f = np.linspace(1e6, 30e6, n)
+    rng = np.random.default_rng(7)
+    v = rng.normal(size=(n, 8)) * 0.3
+    body = "".join(f"{fi:.9g} " + " ".join(f"{x:.9g}" for x in row) + "\n" for fi, row in zip(f, v))
+    return "! made for a test\n# Hz S RI R 50\n" + body
+
+
+def test_quick_path_equals_line_scan():
+    # Self-consistency of our two parsing paths (both over scikit-rf's parser).
+    from cmcheck import touchstone as ts
+
+    text = _two_port_text()
+    fast = ts._fast_parse(text, "q.s2p", ".s2p")
+    assert fast is not None
+    lines = text.splitlines()
+    slow = ts._parse_with_skrf(lines, ts._scan(lines, "q.s2p", ".s2p"), "q.s2p", ".s2p")
+    for a, b in zip(fast, slow):
+        assert np.array_equal(a, b)
+
+
+from hypothesis import HealthCheck, given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+
+@settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(data=st.data())
+def test_damaged_files_read_or_refuse_cleanly(data):
+    # Issue 3: damaged input is either read into a valid sweep or refused with a one-line
+    # TouchstoneError naming the file, never another exception (common practice for parsers
+    # of untrusted input, no published source).
+    from cmcheck.touchstone import parse_touchstone_bytes
+
+    raw = _two_port_text().encode()
+    kind = data.draw(st.sampled_from(["truncate", "delete", "insert", "duplicate", "swap"]))
+    i = data.draw(st.integers(0, len(raw) - 1))
+    j = data.draw(st.integers(i, min(len(raw), i + 40)))
+    if kind == "truncate":
+        raw = raw[:i]
+    elif kind == "delete":
+        raw = raw[:i] + raw[j:]
+    elif kind == "insert":
+        raw = raw[:i] + data.draw(st.binary(min_size=1, max_size=12)) + raw[i:]
+    elif kind == "duplicate":
+        raw = raw[:j] + raw[i:j] + raw[j:]
+    else:
+        raw = raw[:i] + raw[i:j][::-1] + raw[j:]
+    name = data.draw(st.sampled_from(["d.s2p", "d.s1p"]))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", CmcheckWarning)
+        try:
+            sp = parse_touchstone_bytes(raw, name)
+        except TouchstoneError as exc:
+            assert str(exc).startswith(f"{name}: ") and "\n" not in str(exc)
+            return
+    assert sp.frequency_hz.size >= 2 and np.all(np.diff(sp.frequency_hz) > 0)
+    assert np.all(np.isfinite(sp.s)) and sp.z0 > 0
