@@ -57,3 +57,31 @@ __all__ += [
     "load_ring_sizes",
     "worst_case_reduction",
 ]
+
+# Measurements: safe Touchstone reading, S→Z, validity, mixed mode, batch limits.
+from .balance import Balance  # noqa: E402
+from .batch import FileResult, Limits, Summary, evaluate_files, exit_status, summarize  # noqa: E402
+from .measure import Extraction, Fixture, extract, extract_legs, reflection_z, series_through_z, shunt_through_z  # noqa: E402
+from .touchstone import SParameters, read_touchstone  # noqa: E402
+from .validity import Accuracy, Validity  # noqa: E402
+
+__all__ += [
+    "Accuracy",
+    "Balance",
+    "Extraction",
+    "FileResult",
+    "Fixture",
+    "Limits",
+    "SParameters",
+    "Summary",
+    "Validity",
+    "evaluate_files",
+    "exit_status",
+    "extract",
+    "extract_legs",
+    "read_touchstone",
+    "reflection_z",
+    "series_through_z",
+    "shunt_through_z",
+    "summarize",
+]
