@@ -348,7 +348,14 @@ def _show_batch(results: list[FileResult], limits: Limits, models: dict) -> None
             row += ["–" if "impedance_error_median_pct" not in m else f"{m['impedance_error_median_pct']:+.1f}"]
         row.append(_verdict_text(s) or "–")
         t.add_row(*row)
-    console.print(t)
+    # Piped output (a QA log) gets the width it needs; a terminal keeps its own and folds names.
+    if console.is_terminal:
+        console.print(t)
+    else:
+        from rich.console import Console
+
+        need = max(len(r.path) for r in results) + 12 * (len(cols) - 1)
+        Console(highlight=False, width=max(console.width, need)).print(t)
     n_err = sum(1 for r in results if r.error)
     n_fail = sum(1 for r in results if r.summary is not None and r.summary.passed is False)
     n_pass = sum(1 for r in results if r.summary is not None and r.summary.passed)
