@@ -7,6 +7,7 @@ from typing import Iterable
 
 from rich import box
 from rich.console import Console
+from rich.markup import escape
 from rich.table import Table
 
 #: Standard output; rich drops colour by itself when the output is not a terminal.
@@ -19,10 +20,13 @@ err_console = Console(stderr=True, highlight=False)
 
 
 def table(*columns: str) -> Table:
-    """A compact table; numeric-looking columns (with a unit in brackets) align right."""
+    """A compact table; numeric-looking columns (with a unit in brackets) align right.
+
+    Headers are escaped: rich would take a unit such as "[mm]" for a style tag and drop it.
+    """
     t = Table(box=box.SIMPLE_HEAD, pad_edge=False, show_edge=False)
     for c in columns:
-        t.add_column(c, justify="right" if "[" in c or c in {"frequency", "µi", "µ'", "µ''", "µ''/µ'"} else "left")
+        t.add_column(escape(c), justify="right" if "[" in c or c in {"frequency", "µi", "µ'", "µ''", "µ''/µ'"} else "left")
     return t
 
 

@@ -19,7 +19,6 @@ from ..size import DEFAULT_BEND_RATIO, DEFAULT_MAX_CORES, DEFAULT_TARGET_OHM, Si
 from ..thermal import DEFAULT_MAX_RISE_K, Drive
 from ..units import format_quantity, parse_current, parse_length, parse_power, parse_resistance, parse_voltage, parse_wire_diameter
 from ..winding import Cable, Wire
-from rich.markup import escape
 from . import options as o
 from .app import EXIT_LIMIT_FAILED, app
 from .render import console, err_console, print_notes, table
@@ -154,7 +153,7 @@ def _render_size(result: SizeResult, band_text: str) -> None:
         console.print("cost: total core volume, then turns, then margin; cheapest distinct designs:")
         length = "cable [m]" if isinstance(cond, Cable) else "wire [m]"
         cols = ["#", "material", "n × OD×ID×H [mm]", "turns", f"min {s.metric_name} [Ω]", "at", "margin", "SRF", length]
-        t = table(*(escape(c) for c in cols))
+        t = table(*cols)
         t.columns[2].justify = "left"
         # Dimensions and frequencies must not be cut; let headers wrap on narrow terminals instead.
         for i in (1, 2, 5, 7):
@@ -173,7 +172,7 @@ def _render_size(result: SizeResult, band_text: str) -> None:
         console.print(t)
         if s.drive is not None:
             console.print(f"heat at the worst frequency in the band (limit ΔT ≤ {s.max_rise_k:g} K):")
-            h_t = table(*(escape(c) for c in ("#", "P [W]", "at", "ΔT [K]", "B peak [mT]", "at ")))
+            h_t = table(*("#", "P [W]", "at", "ΔT [K]", "B peak [mT]", "at "))
             for i, d in enumerate(designs, 1):
                 h = d.heat
                 h_t.add_row(str(i), _w(h["dissipation_w"]), format_quantity(h["dissipation_hz"], "Hz", 3),
@@ -364,8 +363,8 @@ def compare_command(
                     title=f"R(f): {generic}")
     console.print(f"[bold]{generic}, over {b}[/bold]")
     console.print(f"line's own common-mode impedance: 0 ≤ R ≤ {r_max:g} Ω, |X| ≤ {x_max:g} Ω; ranked by the worst case")
-    t = table(*(escape(c) for c in ("#", "material", "min R [Ω]", "at", "mean R [Ω]", "peak R at", "R>|X| [%]",
-                                     "worst cut [dB]", "at ")))
+    t = table(*("#", "material", "min R [Ω]", "at", "mean R [Ω]", "peak R at", "R>|X| [%]",
+                                     "worst cut [dB]", "at "))
     for i, s in enumerate(result.scores, 1):
         t.add_row(str(i), s.name, f"{s.min_resistance_ohm:,.0f}", format_quantity(s.min_resistance_hz, "Hz", 3),
                   f"{s.mean_resistance_ohm:,.0f}", format_quantity(s.peak_resistance_hz, "Hz", 3)
