@@ -1,8 +1,8 @@
 """Limits, summaries and batch evaluation of measured units (quality checks of a production run).
 
 A summary uses the *valid* points inside the band only and says how many were excluded and
-why. A unit passes when every valid in-band point meets the limits and the sweep covers the
-band. In a batch, a file that cannot be read is reported and the others are still evaluated;
+why. A unit passes when every valid in-band point meets the limits, no point the method cannot
+resolve reads below an impedance target, and the sweep covers the band. In a batch, a file that cannot be read is reported and the others are still evaluated;
 :func:`exit_status` gives 2 if any file was unreadable, else 1 if any failed, else 0.
 """
 
@@ -154,7 +154,7 @@ def summarize(ex: Extraction, limits: Limits = Limits()) -> Summary:
         out["max_phase_imbalance_deg"] = float(np.max(ph)) if ph.size else None
     passed, verdict = None, ""
     if limits.any:
-        passed, verdict = _verdict(ex, limits, out, int(ok.sum()), f)
+        passed, verdict = _verdict(ex, limits, out, int(ok.sum()), f, in_band & ~ex.valid)
     return Summary(
         band_hz=tuple(segments), points_total=int(f.size), points_in_band=int(in_band.sum()),
         points_valid=int(ok.sum()), excluded=ex.validity.subset(in_band).excluded(),
@@ -162,7 +162,8 @@ def summarize(ex: Extraction, limits: Limits = Limits()) -> Summary:
     )
 
 
-def _verdict(ex: Extraction, limits: Limits, out: dict, n_valid: int, f: np.ndarray) -> tuple[bool, str]:
+def _verdict(ex: Extraction, limits: Limits, out: dict, n_valid: int, f: np.ndarray,
+             unresolved: np.ndarray) -> tuple[bool, str]:
     fails = []
     band = limits.band
     # An edge within one sweep step of the band edge covers it (sweeps rarely hit round numbers).
@@ -182,6 +183,19 @@ def _verdict(ex: Extraction, limits: Limits, out: dict, n_valid: int, f: np.ndar
         value = out.get(key)
         if target is not None and value is not None and value < target:
             fails.append(f"{what} {value:.4g} {unit} < {target:.4g} {unit}")
+    # A point the method cannot resolve proves nothing either way, but one that *reads* below
+    # the target must not pass silently: a unit passes QA only on evidence.
+    for attr, what, part in (("target_r", "R", np.real), ("target_z", "|Z|", np.abs)):
+        target = getattr(limits, attr)
+        if target is None or ex.curve is None or not unresolved.any():
+            continue
+        low = unresolved & (part(ex.curve.z) < target)
+        if low.any():
+            i = int(np.flatnonzero(low)[np.argmin(part(ex.curve.z)[low])])
+            fails.append(
+                f"{what} reads below the target at {int(low.sum())} in-band point(s) the method cannot resolve "
+                f"(e.g. {part(ex.curve.z)[i]:.4g} Ω at {format_quantity(f[i], 'Hz')}); remeasure with a method that can"
+            )
     return (not fails), "; ".join(fails)
 
 

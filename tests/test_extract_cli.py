@@ -364,3 +364,14 @@ def test_help_ranges_follow_the_error_model(run_cli):
     assert ok_r.min() == pytest.approx(2.8, rel=0.05) and ok_r.max() == pytest.approx(890, rel=0.05)
     out = run_cli("extract", "--help")[1]
     assert "11 Ω to 90 kΩ" in out and "2.8 Ω to 890 Ω" in out
+
+
+def test_unresolvable_points_reading_below_target_fail(run_cli, tmp_path):
+    # A unit passes QA only on evidence: series-through cannot resolve a near-short
+    # (Z = 2·Z0·(1 − S21)/S21 with S21 → 1, Pozar Table 4.2), so a choke that collapses to
+    # 0.05 Ω at the low end must not pass on its other, valid points.
+    z = np.where(F < 3e6, 0.05 + 0j, 3000.0 + 0j)
+    p = _s2p(tmp_path / "collapsing.s2p", z)
+    code, out, err = run_cli("extract", p, "--band", "1-30MHz", "--target-r", "1k")
+    assert code == 1, out + err
+    assert "cannot resolve" in out
