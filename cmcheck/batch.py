@@ -1,8 +1,9 @@
 """Limits, summaries and batch evaluation of measured units (quality checks of a production run).
 
 A summary uses the *valid* points inside the band only and says how many were excluded and
-why. A unit passes when every valid in-band point meets the limits, no point the method cannot
-resolve reads below an impedance target, and the sweep covers the band. In a batch, a file that cannot be read is reported and the others are still evaluated;
+why. A unit passes when every valid in-band point meets the limits, every in-band point the
+method cannot resolve meets them even at the low end of its error bound, and the sweep covers
+the band. A unit that is neither proven nor disproven fails as "inconclusive". In a batch, a file that cannot be read is reported and the others are still evaluated;
 :func:`exit_status` gives 2 if any file was unreadable, else 1 if any failed, else 0.
 """
 
@@ -169,8 +170,8 @@ def _verdict(ex: Extraction, limits: Limits, out: dict, n_valid: int, f: np.ndar
     # An edge within one sweep step of the band edge covers it (sweeps rarely hit round numbers).
     if band is not None and (f[0] > band.low + (f[1] - f[0]) or f[-1] < band.high - (f[-1] - f[-2])):
         fails.append(f"the sweep ({format_quantity(f[0], 'Hz')}–{format_quantity(f[-1], 'Hz')}) does not cover the band")
-    if n_valid == 0:
-        fails.append("no valid point in the band")
+    if n_valid == 0 and not unresolved.any():
+        fails.append("no point in the band")
     wants_z = limits.target_r is not None or limits.target_z is not None
     if wants_z and ex.curve is None:
         fails.append("no impedance from this measurement for --target-r/--target-z")
@@ -183,20 +184,58 @@ def _verdict(ex: Extraction, limits: Limits, out: dict, n_valid: int, f: np.ndar
         value = out.get(key)
         if target is not None and value is not None and value < target:
             fails.append(f"{what} {value:.4g} {unit} < {target:.4g} {unit}")
-    # A point the method cannot resolve proves nothing either way, but one that *reads* below
-    # the target must not pass silently: a unit passes QA only on evidence.
-    for attr, what, part in (("target_r", "R", np.real), ("target_z", "|Z|", np.abs)):
-        target = getattr(limits, attr)
-        if target is None or ex.curve is None or not unresolved.any():
-            continue
-        low = unresolved & (part(ex.curve.z) < target)
-        if low.any():
-            i = int(np.flatnonzero(low)[np.argmin(part(ex.curve.z)[low])])
-            fails.append(
-                f"{what} reads below the target at {int(low.sum())} in-band point(s) the method cannot resolve "
-                f"(e.g. {part(ex.curve.z)[i]:.4g} Ω at {format_quantity(f[i], 'Hz')}); remeasure with a method that can"
-            )
+    if unresolved.any():
+        fails += _unresolved_verdicts(ex, limits, f, unresolved)
     return (not fails), "; ".join(fails)
+
+
+def _bounds(ex: Extraction, attr: str) -> tuple[np.ndarray, np.ndarray, np.ndarray, str, str] | None:
+    """Measured value and its error bounds per point for one kind of limit, or None."""
+    e = ex.validity.relative_error
+    if attr in ("target_r", "target_z") and ex.curve is not None:
+        z = ex.curve.z
+        value = z.real if attr == "target_r" else np.abs(z)
+        spread = e * np.abs(z)  # |δZ| ≤ e·|Z| bounds both R and |Z|
+        return value, value - spread, value + spread, ("R" if attr == "target_r" else "|Z|"), "Ω"
+    if attr == "target_cmrr_db" and ex.balance is not None:
+        value = ex.balance.cmrr_db
+        # CMRR = 20·log10|Sds21/Scs21|; a relative error e of |Scs21| moves it by −20·log10(1 ± e).
+        with np.errstate(divide="ignore", invalid="ignore"):
+            lo = value - 20.0 * np.log10(1.0 + e)
+            hi = np.where(e < 1.0, value - 20.0 * np.log10(np.clip(1.0 - e, 1e-300, None)), np.inf)
+        return value, lo, hi, "CMRR", "dB"
+    return None
+
+
+def _unresolved_verdicts(ex: Extraction, limits: Limits, f: np.ndarray, unresolved: np.ndarray) -> list[str]:
+    """Judge points the method cannot resolve by their error bounds, not by their reading.
+
+    Such a point proves the target when even its lower bound meets it, disproves it when even
+    its upper bound misses it, and otherwise leaves the unit unproven: QA passes on evidence.
+    Points that break passivity or lie outside the fixture data have no usable bound.
+    """
+    v = ex.validity
+    no_bound = v.not_passive | v.no_fixture_data
+    fails = []
+    for attr in ("target_r", "target_z", "target_cmrr_db"):
+        target = getattr(limits, attr)
+        b = _bounds(ex, attr) if target is not None else None
+        if b is None:
+            continue
+        value, lo, hi, what, unit = b
+        with np.errstate(invalid="ignore"):
+            below = unresolved & ~no_bound & (hi < target)
+            unproven = unresolved & ~below & ~(~no_bound & (lo >= target))
+        if below.any():
+            i = int(np.flatnonzero(below)[np.argmin(value[below])])
+            fails.append(f"{what} below the target at {int(below.sum())} in-band point(s) even allowing for their "
+                         f"error (e.g. {value[i]:.4g} {unit} at {format_quantity(f[i], 'Hz')})")
+        if unproven.any():
+            i = int(np.flatnonzero(unproven)[0])
+            fails.append(f"inconclusive: {int(unproven.sum())} in-band point(s) cannot be resolved well enough to "
+                         f"prove {what} ≥ {target:.4g} {unit} (e.g. {value[i]:.4g} {unit} at "
+                         f"{format_quantity(f[i], 'Hz')}); remeasure them with a method or instrument setting that can")
+    return fails
 
 
 def model_error(ex: Extraction, model_z, band: Band | None = None) -> dict:
