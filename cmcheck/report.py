@@ -13,6 +13,8 @@ import json
 import math
 import os
 import tempfile
+from contextlib import contextmanager
+from contextvars import ContextVar
 from pathlib import Path
 from typing import Callable, Iterable, Sequence
 
@@ -24,6 +26,7 @@ from .errors import CmcheckError
 __all__ = [
     "SAFETY_NOTES",
     "atomic_write",
+    "staged_outputs",
     "check_outputs",
     "curve_rows",
     "plot_curves",
@@ -63,23 +66,61 @@ def check_outputs(outputs: Iterable[str | os.PathLike | None], inputs: Iterable[
         seen.add(p)
 
 
+_staged: ContextVar[list | None] = ContextVar("cmcheck_staged_outputs", default=None)
+
+
+@contextmanager
+def staged_outputs():
+    """Write several outputs all together or not at all.
+
+    Inside the block, :func:`atomic_write` renders each output into a temporary file beside
+    its target; only when the block ends without an error are they all moved into place.
+    On an error every temporary file is removed and no target is touched.
+    """
+    pending: list[tuple[Path, Path]] = []
+    token = _staged.set(pending)
+    try:
+        yield
+    except BaseException:
+        for tmp, _ in pending:
+            tmp.unlink(missing_ok=True)
+        raise
+    finally:
+        _staged.reset(token)
+    for tmp, target in pending:
+        os.replace(tmp, target)
+
+
 def atomic_write(path: str | os.PathLike, render: Callable[[Path], None]) -> None:
-    """Call ``render(tmp_path)`` and move the result to ``path`` only if it succeeded."""
+    """Call ``render(tmp_path)`` and move the result to ``path`` only if it succeeded.
+
+    Inside :func:`staged_outputs` the move waits until every output has rendered.
+    """
     target = Path(path)
     if not target.parent.is_dir():
         raise CmcheckError(f"{path}: folder {target.parent} does not exist")
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=target.suffix, dir=target.parent)
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=target.suffix, dir=target.parent)
+    except OSError as exc:
+        raise CmcheckError(f"{path}: cannot write here ({exc.strerror or exc})") from None
     os.close(fd)
     tmp_path = Path(tmp)
+    pending = _staged.get()
     try:
-        render(tmp_path)
+        try:
+            render(tmp_path)
+        except OSError as exc:
+            raise CmcheckError(f"{path}: cannot be written ({exc.strerror or exc})") from None
         # mkstemp creates 0600; give the file the permissions a plain open() would.
         umask = os.umask(0)
         os.umask(umask)
         os.chmod(tmp_path, 0o666 & ~umask)
+        if pending is not None:
+            pending.append((tmp_path, target))
+            return
         os.replace(tmp_path, target)
     finally:
-        if tmp_path.exists():
+        if (pending is None or not pending or pending[-1][0] != tmp_path) and tmp_path.exists():
             tmp_path.unlink()
 
 

@@ -14,7 +14,7 @@ from ..batch import FileResult, Limits, evaluate_files, exit_status, model_error
 from ..curve import ImpedanceCurve
 from ..errors import CmcheckError, MeasurementError, UnitError
 from ..measure import METHODS, Accuracy, Fixture
-from ..report import SAFETY_NOTES, atomic_write, check_outputs, plot_curves, write_csv, write_json
+from ..report import SAFETY_NOTES, atomic_write, check_outputs, plot_curves, staged_outputs, write_csv, write_json
 from ..touchstone import read_touchstone
 from ..units import format_quantity, parse_resistance
 from . import options as o
@@ -185,22 +185,24 @@ def extract(
                 raise MeasurementError(f"{r.path}: --vs-model needs an impedance (series, shunt, reflect or a 4-port file)")
             models[r.path] = model_error(r.extraction, design.impedance(r.extraction.frequency_hz), limits.band)
 
+    # Files first, all or none: a closed pipe (| head) must not cost the user the results.
+    with staged_outputs():
+        if json_out and good:
+            data: dict = {"results": [_with_model(result_to_dict(r), models.get(r.path)) for r in results]}
+            if design is not None:
+                data["model"] = {"description": design.describe(), **design.to_dict()}
+            write_json(json_out, data)
+        if csv_out and good:
+            _write_long_csv(csv_out, good, models)
+        if summary_out:
+            _write_summary(summary_out, results)
+        if plot_out and good:
+            _plot(plot_out, good, limits, design)
+
     if len(results) == 1 and good:
         _show_one(good[0], limits, accuracy, rows, models.get(good[0].path))
     elif good:
         _show_batch(results, limits, models)
-
-    if json_out and good:
-        data: dict = {"results": [_with_model(result_to_dict(r), models.get(r.path)) for r in results]}
-        if design is not None:
-            data["model"] = {"description": design.describe(), **design.to_dict()}
-        write_json(json_out, data)
-    if csv_out and good:
-        _write_long_csv(csv_out, good, models)
-    if summary_out:
-        _write_summary(summary_out, results)
-    if plot_out and good:
-        _plot(plot_out, good, limits, design)
     if good:
         print_notes([f"A small-signal sweep does not show the core at power. {SAFETY_NOTES[2]}"])
     raise typer.Exit(exit_status(results))

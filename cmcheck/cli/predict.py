@@ -11,7 +11,16 @@ import typer
 from ..choke import predict as predict_choke
 from ..cores import RingCore
 from ..materials import builtin_materials, get_material
-from ..report import SAFETY_NOTES, check_outputs, curve_rows, plot_curves, write_csv, write_json, write_touchstone
+from ..report import (
+    SAFETY_NOTES,
+    check_outputs,
+    curve_rows,
+    plot_curves,
+    staged_outputs,
+    write_csv,
+    write_json,
+    write_touchstone,
+)
 from ..units import format_quantity
 from . import options as o
 from .app import app
@@ -62,6 +71,18 @@ def predict(
     s = result.summary
     curve = result.curve
 
+    # Files first, all or none: a closed pipe (| head) must not cost the user the results.
+    comments = [design.describe(), "predicted by cmcheck (model estimate, not a measurement)"]
+    with staged_outputs():
+        if json_out:
+            write_json(json_out, result.to_dict())
+        if csv_out:
+            write_csv(csv_out, *curve_rows(curve), comments=comments)
+        if plot_out:
+            plot_curves(plot_out, [curve], band=b, title=design.describe())
+        if touchstone_out:
+            write_touchstone(touchstone_out, curve, comments=comments)
+
     console.print(f"[bold]{design.describe()}[/bold]")
     core = design.core
     core_info = [f"C1 = Σl/A = {core.c1:.5g} 1/m"]
@@ -94,15 +115,6 @@ def predict(
     if s["max_turns_one_layer"] is not None:
         console.print(f"one layer holds up to {s['max_turns_one_layer']} turns of this conductor")
 
-    comments = [design.describe(), "predicted by cmcheck (model estimate, not a measurement)"]
-    if json_out:
-        write_json(json_out, result.to_dict())
-    if csv_out:
-        write_csv(csv_out, *curve_rows(curve), comments=comments)
-    if plot_out:
-        plot_curves(plot_out, [curve], band=b, title=design.describe())
-    if touchstone_out:
-        write_touchstone(touchstone_out, curve, comments=comments)
     print_notes(SAFETY_NOTES[:1])
 
 

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import os
+import sys
 from typing import Iterable
 
 from rich import box
@@ -10,8 +11,17 @@ from rich.console import Console
 from rich.markup import escape
 from rich.table import Table
 
+class _Console(Console):
+    def on_broken_pipe(self) -> None:
+        # rich would exit with status 1, which here means "a limit failed"; let the one
+        # place that maps errors to exit codes decide instead.
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        raise BrokenPipeError("output pipe closed")
+
+
 #: Standard output; rich drops colour by itself when the output is not a terminal.
-console = Console(highlight=False)
+console = _Console(highlight=False)
 if not console.is_terminal and "COLUMNS" not in os.environ:
     # Piped or redirected output: rich would wrap at 80 columns; tables read better wider.
     console.width = 110

@@ -13,7 +13,7 @@ import typer
 from ..compare import DEFAULT_LINE_R_MAX, DEFAULT_LINE_X_MAX, compare_materials, comparison_curves
 from ..errors import CmcheckWarning, DesignError, UnitError
 from ..materials import builtin_materials, get_material
-from ..report import SAFETY_NOTES, check_outputs, plot_curves, write_json
+from ..report import SAFETY_NOTES, check_outputs, plot_curves, staged_outputs, write_json
 from ..ringsizes import builtin_ring_sizes, load_ring_sizes
 from ..size import DEFAULT_BEND_RATIO, DEFAULT_MAX_CORES, DEFAULT_TARGET_OHM, SizeResult, SizeSpec, format_rise, size as run_size
 from ..thermal import DEFAULT_MAX_RISE_K, Drive
@@ -286,15 +286,16 @@ def size_command(
     finally:
         bar.close()
     # Files first: a closed pipe (| head) must not cost the user the JSON or the plot.
-    if json_out:
-        write_json(json_out, result.to_dict())
-    if plot_out:
-        shown = result.designs or ((result.closest,) if result.closest else ())
-        curves = [_context_curve(d.design, b, f"#{i} {d.design.material.name} {d.core.stack}×({_core_text(d.design)}) N={d.design.winding.turns}")
-                  for i, d in enumerate(shown, 1)]
-        if curves:
-            plot_curves(plot_out, curves, band=b, quantities=("R",), target_ohm=target,
-                        title=f"{'designs' if result.designs else 'closest design'} for {spec.metric_name} ≥ {target:g} Ω, {b}")
+    with staged_outputs():
+        if json_out:
+            write_json(json_out, result.to_dict())
+        if plot_out:
+            shown = result.designs or ((result.closest,) if result.closest else ())
+            curves = [_context_curve(d.design, b, f"#{i} {d.design.material.name} {d.core.stack}×({_core_text(d.design)}) N={d.design.winding.turns}")
+                      for i, d in enumerate(shown, 1)]
+            if curves:
+                plot_curves(plot_out, curves, band=b, quantities=("R",), target_ohm=target,
+                            title=f"{'designs' if result.designs else 'closest design'} for {spec.metric_name} ≥ {target:g} Ω, {b}")
     _render_size(result, band)
     if p is not None:
         print_notes(SAFETY_NOTES)
@@ -356,11 +357,12 @@ def compare_command(
     result = compare_materials(mats, design.core, design.winding, b, points=points, line_r_max=r_max, line_x_max=x_max)
     generic = design.describe().rsplit(",", 1)[0]
     # Files first: a closed pipe (| head) must not cost the user the JSON or the plot.
-    if json_out:
-        write_json(json_out, result.to_dict())
-    if plot_out:
-        plot_curves(plot_out, comparison_curves(result), band=b, quantities=("R",),
-                    title=f"R(f): {generic}")
+    with staged_outputs():
+        if json_out:
+            write_json(json_out, result.to_dict())
+        if plot_out:
+            plot_curves(plot_out, comparison_curves(result), band=b, quantities=("R",),
+                        title=f"R(f): {generic}")
     console.print(f"[bold]{generic}, over {b}[/bold]")
     console.print(f"line's own common-mode impedance: 0 ≤ R ≤ {r_max:g} Ω, |X| ≤ {x_max:g} Ω; ranked by the worst case")
     t = table(*("#", "material", "min R [Ω]", "at", "mean R [Ω]", "peak R at", "R>|X| [%]",
