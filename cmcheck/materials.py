@@ -327,6 +327,8 @@ def load_material_csv(path) -> Material:
         If the file is missing, unreadable, or not such a table.
     """
     p = Path(path)
+    if p.is_dir():
+        raise MaterialError(f"material file {path}: is a folder, expected a CSV file")
     if not p.is_file():
         raise MaterialError(f"material file {path}: not found")
     try:

@@ -273,7 +273,10 @@ def _scan(lines: list[str], name: str, ext: str) -> _Layout:
                 raise TouchstoneError(
                     f"{name}: data lines hold {cnt[0]} numbers but a {rank}-port file needs {per_point}{hint}"
                 )
-            where = "last line truncated" if k == len(cnt) - 1 else "damaged or truncated line"
+            if cnt[k] > per_point:
+                where = "too many numbers"
+            else:
+                where = "last line truncated" if k == len(cnt) - 1 else "damaged or truncated line"
             raise TouchstoneError(
                 f"{name}: line {idx[k] + 1} holds {cnt[k]} numbers, expected {per_point} ({where})"
             )

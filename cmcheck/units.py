@@ -141,9 +141,11 @@ def parse_quantity(text, kind: str) -> float:
             break
     else:
         prefix = suffix  # a bare prefix, as in "1k" or "2.8p"
-    if kind == "frequency" and prefix == "m":
+    if kind == "frequency" and prefix in ("m", "g", "t"):
         # Nobody sweeps a choke in millihertz: "mhz" is megahertz typed in lower case.
-        prefix = "M"
+        prefix = prefix.upper()
+    if kind == "capacitance" and prefix in ("P", "N", "U"):
+        prefix = prefix.lower()  # "2.8PF": capitals typed for picofarads
     if kind == "capacitance" and prefix == "M":
         raise UnitError(f"capacitance {text!r}: 'M' is ambiguous; use p, n, u or m")
     if prefix not in _PREFIX:
@@ -191,11 +193,11 @@ def parse_length(text, *, allow_awg: bool = False) -> float:
     if not isinstance(text, str):
         return float(text)
     stripped = text.strip()
-    m = re.fullmatch(r"(?i)\s*(\d+)\s*awg\s*|\s*awg\s*(\d+)\s*", stripped)
+    m = re.fullmatch(r"(?i)\s*(\d+(?:/0)?)\s*awg\s*|\s*awg\s*(\d+(?:/0)?)\s*", stripped)
     if m:
         if not allow_awg:
             raise UnitError(f"length {text!r}: a wire gauge is only accepted for a wire diameter")
-        return awg_diameter(int(m.group(1) or m.group(2)))
+        return awg_diameter(_gauge_number(m.group(1) or m.group(2)))
     value, suffix = _split(stripped, "length")
     if not math.isfinite(value):
         raise UnitError(f"length {text!r} is not a finite number")
@@ -203,10 +205,21 @@ def parse_length(text, *, allow_awg: bool = False) -> float:
         if value == 0:
             return 0.0
         raise UnitError(f"length {text!r} needs a unit, e.g. {text}mm, {text}m or {text}in")
+    if suffix == "M":
+        raise UnitError(f"length {text!r}: 'M' is ambiguous; use m (metres) or mm")
     key = suffix if suffix in _LENGTH_UNITS else suffix.lower()
     if key not in _LENGTH_UNITS:
         raise UnitError(f"cannot read length {text!r}: unknown unit {suffix!r} (use mm, m, cm or in)")
     return value * _LENGTH_UNITS[key]
+
+
+def _gauge_number(text: str) -> int:
+    """AWG as written to the gauge number n of ASTM B258: "00" or "2/0" is −1, "0000" or "4/0" is −3."""
+    if text.endswith("/0"):
+        return 1 - int(text[:-2])
+    if len(text) > 1 and set(text) == {"0"}:
+        return 1 - len(text)
+    return int(text)
 
 
 def parse_wire_diameter(text) -> float:
@@ -306,6 +319,9 @@ def parse_band(text: str) -> Band:
             segments.append((parse_frequency(lo_text), parse_frequency(hi_text)))
         except UnitError as exc:
             raise UnitError(f"cannot read band {part.strip()!r}: {exc}") from None
+        if hi_suffix == "" and lo_suffix == "" and segments[-1][1] < 1e3:
+            # A unit-less "7-7.3" is hertz by the rules, but surely meant megahertz.
+            raise UnitError(f"band {part.strip()!r} has no unit and would mean hertz; write e.g. {part.strip()}MHz")
     return Band(tuple(segments))
 
 

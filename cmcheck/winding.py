@@ -153,7 +153,7 @@ def max_turns_single_layer(window_diameter, conductor_od):
     d = np.asarray(conductor_od, dtype=float)
     with np.errstate(divide="ignore", invalid="ignore"):
         s = d / (D - d)
-        n = np.where(s >= 1.0, 1, np.floor(np.pi / np.arcsin(np.clip(s, 1e-12, 1.0)) + 1e-9))
+        n = np.where(s > 1.0, 1, np.floor(np.pi / np.arcsin(np.clip(s, 1e-12, 1.0)) + 1e-9))
     n = np.where(d >= D, 0, n).astype(int)
     return int(n) if n.ndim == 0 else n
 
@@ -405,7 +405,8 @@ def check_fit(window_diameter: float, winding: Winding) -> int:
     """Check that ``winding`` passes through a hole of ``window_diameter`` [m].
 
     Returns the most turns that fit in one layer. Raises :class:`WindingError` when the
-    conductor does not pass through at all; warns (:class:`CmcheckWarning`) when N needs more
+    conductor does not pass through at all, or when N conductors would fill more of the hole
+    than the densest packing of circles allows; warns (:class:`CmcheckWarning`) when N needs more
     than one layer, since the capacitance estimate then no longer holds.
     """
     d = winding.conductor.outer_diameter
@@ -414,6 +415,13 @@ def check_fit(window_diameter: float, winding: Winding) -> int:
         raise WindingError(
             f"the conductor ({d * 1e3:.3g} mm) does not pass through the core's "
             f"{window_diameter * 1e3:.3g} mm hole"
+        )
+    # No number of layers holds more conductor than hexagonal packing fills the hole with:
+    # density π/(2√3) (Thue's theorem on circle packing in the plane).
+    if winding.turns * d**2 > math.pi / (2 * math.sqrt(3)) * window_diameter**2:
+        raise WindingError(
+            f"{winding.turns} turns of {d * 1e3:.3g} mm cannot pass through a {window_diameter * 1e3:.3g} mm hole "
+            f"in any number of layers (one layer holds {n_max})"
         )
     if winding.turns > n_max:
         warnings.warn(

@@ -107,3 +107,15 @@ def test_materials_listing(run_cli, tmp_path):
         assert {"name", "description", "initial_permeability", "provenance"} <= set(m)
     code, stdout, _ = run_cli("materials", "nizn-800", "--band", "1-100MHz")
     assert code == 0 and "µ''" in stdout
+
+
+def test_window_only_with_core_factor(run_cli):
+    code, _, err = run_cli("predict", *DESIGN, "--window", "3mm")
+    assert code == 2 and "--window" in err
+
+
+def test_material_folder_named(run_cli, tmp_path):
+    d = tmp_path / "curves.csv"
+    d.mkdir()
+    code, _, err = run_cli("predict", *DESIGN, "--material", d)
+    assert code == 2 and "folder" in err

@@ -112,3 +112,26 @@ def test_band_grid_contains_edges(lo, ratio):
 def test_length_roundtrip_mm(v):
     assert parse_length(f"{v!r}mm") == pytest.approx(v * 1e-3)
     assert math.isfinite(parse_length(f"{v!r}in"))
+
+
+@pytest.mark.parametrize("text, gauge", [("0000awg", -3), ("4/0awg", -3), ("000awg", -2), ("2/0awg", -1), ("00awg", -1), ("0awg", 0)])
+def test_aught_gauges(text, gauge):
+    # ASTM B258: 4/0 (0000) AWG is 0.4600 in = 11.684 mm; each aught step is n − 1 in the formula.
+    assert parse_wire_diameter(text) == pytest.approx(awg_diameter(gauge))
+    if gauge == -3:
+        assert parse_wire_diameter(text) == pytest.approx(11.684e-3, rel=1e-4)
+
+
+def test_unitless_band_refused():
+    # A unit-less "7-7.3" would be hertz; plain numbers in hertz stay accepted (7e6-30e6).
+    with pytest.raises(UnitError, match="no unit"):
+        parse_band("7-7.3")
+    assert parse_band("7e6-7.3e6").low == pytest.approx(7e6)
+
+
+def test_case_forgiving_where_unambiguous():
+    # SI prefixes (BIPM SI Brochure, Table 7): "ghz" and "PF" can only mean GHz and pF here.
+    assert parse_frequency("1ghz") == pytest.approx(1e9)
+    assert parse_capacitance("2.8PF") == pytest.approx(2.8e-12)
+    with pytest.raises(UnitError):
+        parse_length("1M")

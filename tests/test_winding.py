@@ -115,3 +115,15 @@ def test_cable_shield_diameter():
     c = Cable(5e-3)
     # Default jacket 12 % of the OD (typical small coax, from memory).
     assert c.conducting_diameter == pytest.approx(5e-3 * 0.76)
+
+
+def test_two_conductors_at_half_the_hole():
+    # Geometry: two circles of diameter D/2 fit side by side across a hole of diameter D.
+    assert max_turns_single_layer(10e-3, 5e-3) == 2
+
+
+def test_impossible_turn_count_is_an_error():
+    # Densest packing of circles in the plane covers π/(2√3) of it (Thue's theorem): 200 turns
+    # of 5 mm (d²·N = 5000 mm²) cannot pass a 35.6 mm hole (0.907·35.6² ≈ 1149 mm²) in any layers.
+    with pytest.raises(WindingError, match="any number of layers"):
+        check_fit(35.6e-3, Winding(200, Cable(5e-3)))

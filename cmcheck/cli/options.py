@@ -125,6 +125,8 @@ def design_from_options(
             raise UnitError(f"--core-factor: {core_factor!r} is not a number in 1/m") from None
         core = FactorCore(c1 / max(cores, 1), _length("--window", window) if window else None)
     else:
+        if window is not None:
+            raise CmcheckError("--window describes a --core-factor core; a ring's hole is its --id")
         missing = [n for n, v in (("--od", od), ("--id", id), ("--height", height)) if v is None]
         if missing:
             raise CmcheckError(f"the core needs {', '.join(missing)} (or --core-factor)")
