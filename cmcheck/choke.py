@@ -280,7 +280,7 @@ class Prediction:
 
 
 def _search_range(material: Material, band: Band) -> tuple[float, float]:
-    lo, hi = band.low / 10.0, band.high * 10.0
+    lo, hi = band.low / 100.0, band.high * 100.0
     rng = material.range_hz
     if rng is not None:
         lo, hi = max(lo, rng[0]), min(hi, rng[1])

@@ -137,7 +137,7 @@ def to_jsonable(obj):
     if isinstance(obj, (np.integer,)):
         return int(obj)
     if isinstance(obj, (float, np.floating)):
-        v = float(obj)
+        v = float(obj) + 0.0  # + 0.0 turns −0.0 into 0.0
         return v if math.isfinite(v) else None
     if isinstance(obj, complex):
         return {"re": to_jsonable(obj.real), "im": to_jsonable(obj.imag)}

@@ -29,6 +29,7 @@ __all__ = [
     "parse_resistance",
     "parse_voltage",
     "parse_wire_diameter",
+    "span_digits",
 ]
 
 _PREFIX = {
@@ -287,7 +288,15 @@ class Band:
 
 
 def _fmt_seg(lo: float, hi: float) -> str:
-    return f"{format_quantity(lo, 'Hz')}–{format_quantity(hi, 'Hz')}"
+    d = span_digits(lo, hi)
+    return f"{format_quantity(lo, 'Hz', d)}–{format_quantity(hi, 'Hz', d)}"
+
+
+def span_digits(lo: float, hi: float, least: int = 4) -> int:
+    """Significant digits that keep ``lo`` and ``hi`` apart when printed (a narrow band needs more)."""
+    if not (hi > lo > 0):
+        return least
+    return max(least, min(12, math.ceil(math.log10(hi / (hi - lo))) + 2))
 
 
 _RANGE = re.compile(r"^\s*(.*?[^eE\s-])\s*(?:-|–|\.\.|to)\s*([0-9.].*)$")

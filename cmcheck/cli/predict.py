@@ -21,7 +21,7 @@ from ..report import (
     write_json,
     write_touchstone,
 )
-from ..units import format_quantity
+from ..units import format_quantity, span_digits
 from . import options as o
 from .app import app
 from .render import console, print_notes, table
@@ -97,10 +97,11 @@ def predict(
     console.print("  winding: " + ", ".join(wind_info))
 
     idx = _table_rows(curve.frequency_hz, b, rows, s["min_resistance_hz"])
+    digits = span_digits(b.low, b.high)
     t = table("frequency", "R [Ω]", "X [Ω]", "|Z| [Ω]", "R>|X|")
     for i in idx:
         z = curve.z[i]
-        t.add_row(format_quantity(curve.frequency_hz[i], "Hz"), f"{z.real:,.1f}", f"{z.imag:,.1f}",
+        t.add_row(format_quantity(curve.frequency_hz[i], "Hz", digits), f"{z.real:,.1f}", f"{z.imag:,.1f}",
                   f"{abs(z):,.1f}", "yes" if z.real > abs(z.imag) else "")
     console.print(t)
 
@@ -108,8 +109,8 @@ def predict(
     lo, hi = s["self_resonance_searched_hz"]
     srf_text = (format_quantity(srf, "Hz") if srf else
                 f"none between {format_quantity(lo, 'Hz')} and {format_quantity(hi, 'Hz')}")
-    console.print(f"band {b}: min R = {s['min_resistance_ohm']:,.0f} Ω at {format_quantity(s['min_resistance_hz'], 'Hz')}, "
-                  f"max R = {s['max_resistance_ohm']:,.0f} Ω at {format_quantity(s['max_resistance_hz'], 'Hz')}")
+    console.print(f"band {b}: min R = {s['min_resistance_ohm']:,.1f} Ω at {format_quantity(s['min_resistance_hz'], 'Hz', digits)}, "
+                  f"max R = {s['max_resistance_ohm']:,.1f} Ω at {format_quantity(s['max_resistance_hz'], 'Hz', digits)}")
     console.print(f"self-resonance: {srf_text}; mostly resistive (R > |X|) over "
                   f"{100 * s['resistive_fraction']:.0f} % of the band")
     if s["max_turns_one_layer"] is not None:
