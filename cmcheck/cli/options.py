@@ -67,7 +67,7 @@ Cp = Annotated[
     Optional[str],
     typer.Option(
         "--cp",
-        help="Stray capacitance across the winding, e.g. 2.8pF; default: single-layer estimate; 0 turns it off.",
+        help="Stray capacitance across the winding, e.g. 2.8pF; default: a single-layer first estimate, often low (measure it); 0 turns it off.",
         rich_help_panel=DESIGN_PANEL,
     ),
 ]
