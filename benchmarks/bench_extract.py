@@ -18,6 +18,7 @@ from __future__ import annotations
 import argparse
 import tempfile
 import time
+import timeit
 import warnings
 from pathlib import Path
 
@@ -45,12 +46,8 @@ def make_files(folder: Path, n_files: int, n_points: int, seed: int = 1) -> list
 
 
 def best_of(fn, repeat: int) -> float:
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return min(times)
+    """Shortest of ``repeat`` single runs [s] (the least disturbed by other load)."""
+    return min(timeit.repeat(fn, number=1, repeat=repeat))
 
 
 def main() -> None:

@@ -19,6 +19,7 @@ from __future__ import annotations
 
 import argparse
 import time
+import timeit
 
 import numpy as np
 
@@ -32,12 +33,8 @@ from cmcheck.winding import Wire, Winding
 
 
 def best_of(fn, repeat: int) -> float:
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return min(times)
+    """Shortest of ``repeat`` single runs [s] (the least disturbed by other load)."""
+    return min(timeit.repeat(fn, number=1, repeat=repeat))
 
 
 def main() -> None:

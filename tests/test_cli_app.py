@@ -1,4 +1,8 @@
-"""The command line's contract: one-line errors, exit statuses, outputs all or nothing."""
+"""The command line's contract: one-line errors, exit statuses, outputs all or nothing.
+
+No physical values are checked here (their sources are named in the physics tests); the
+rules come from the project's contributor guide (no published source).
+"""
 
 import subprocess
 import sys

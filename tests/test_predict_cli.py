@@ -1,4 +1,9 @@
-"""`cmcheck predict` and `cmcheck materials` end to end."""
+"""`cmcheck predict` and `cmcheck materials` end to end.
+
+These check the command line's contract (outputs, errors, agreement with the library it
+calls); the physical values it prints are checked, each against its published source, in
+test_choke.py, test_cores.py, test_winding.py and test_reference_data.py.
+"""
 
 import json
 import subprocess

@@ -1,4 +1,7 @@
-"""Project rules that a test can hold: no product designations, no copied real measurements."""
+"""Project rules that a test can hold: no product designations, no copied real measurements.
+
+The rules are the project's own (contributor guide; no published source).
+"""
 
 import re
 import subprocess
