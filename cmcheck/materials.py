@@ -8,7 +8,6 @@ values from memory, not any maker's data). Convention: e^{jωt}, so a passive ma
 
 from __future__ import annotations
 
-import csv
 import json
 from dataclasses import dataclass, field
 from functools import lru_cache
@@ -19,6 +18,7 @@ from typing import Protocol
 import numpy as np
 
 from .errors import MaterialError
+from .tables import read_table
 
 __all__ = [
     "Debye",
@@ -327,33 +327,22 @@ def load_material_csv(path) -> Material:
         If the file is missing, unreadable, or not such a table.
     """
     p = Path(path)
-    if p.is_dir():
-        raise MaterialError(f"material file {path}: is a folder, expected a CSV file")
-    if not p.is_file():
-        raise MaterialError(f"material file {path}: not found")
-    try:
-        text = p.read_text(encoding="utf-8-sig")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise MaterialError(f"material file {path}: cannot be read ({exc.__class__.__name__})") from None
-    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
-    if not lines:
-        raise MaterialError(f"material file {path}: empty")
-    rows = list(csv.reader(lines))
-    header = [h.strip().lower() for h in rows[0]]
+    where = f"material file {path}"
+    table = read_table(p, where, MaterialError)
     want = ["frequency_hz", "mu_prime", "mu_double_prime"]
-    if header[:3] != want:
-        raise MaterialError(f"material file {path}: header must be {','.join(want)}, got {','.join(rows[0])}")
+    if table.header[:3] != want:
+        raise MaterialError(f"{where}: header must be {','.join(want)}, got {table.header_text}")
     data = []
-    for i, row in enumerate(rows[1:], start=2):
+    for n, (_, row) in enumerate(table.rows, start=1):
         try:
             data.append([float(row[0]), float(row[1]), float(row[2])])
         except (ValueError, IndexError):
-            raise MaterialError(f"material file {path}: data row {i - 1} is not three numbers: {','.join(row)}") from None
+            raise MaterialError(f"{where}: data row {n} is not three numbers: {','.join(row)}") from None
     arr = np.array(data, dtype=float).reshape(-1, 3)
     arr = arr[np.argsort(arr[:, 0], kind="stable")]
     if arr.shape[0] and np.any(np.diff(arr[:, 0]) == 0):
-        raise MaterialError(f"material file {path}: the same frequency appears twice")
-    comments = [ln.lstrip()[1:].strip() for ln in text.splitlines() if ln.lstrip().startswith("#")]
+        raise MaterialError(f"{where}: the same frequency appears twice")
+    comments = table.comments
     model = Tabulated(arr[:, 0], arr[:, 1], arr[:, 2], source=f"material file {path}")
     return Material(
         name=p.stem,

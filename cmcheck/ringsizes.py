@@ -7,16 +7,15 @@ whose height is its length along the cable.
 
 from __future__ import annotations
 
-import csv
 import math
 from dataclasses import dataclass
 from functools import lru_cache
 from importlib import resources
-from pathlib import Path
 
 import numpy as np
 
 from .errors import DimensionError
+from .tables import Table, parse_table, read_table
 
 __all__ = ["RingSizes", "bend_radius", "builtin_ring_sizes", "load_ring_sizes"]
 
@@ -70,27 +69,27 @@ class RingSizes:
 
 
 def _parse_ring_sizes(text: str, where: str, source: str | None = None) -> RingSizes:
-    lines = [(i, ln) for i, ln in enumerate(text.splitlines(), start=1) if ln.strip() and not ln.lstrip().startswith("#")]
-    if not lines:
-        raise DimensionError(f"{where}: no sizes (expected header kind,od_mm,id_mm,height_mm)")
-    header = [h.strip().lower() for h in next(csv.reader([lines[0][1]]))]
+    return _ring_sizes(parse_table(text, where, DimensionError), where, source)
+
+
+def _ring_sizes(table: Table, where: str, source: str | None = None) -> RingSizes:
+    header = table.header
     units = {"od_mm": 1e-3, "id_mm": 1e-3, "height_mm": 1e-3, "od_m": 1.0, "id_m": 1.0, "height_m": 1.0}
     cols = {}
     for key in ("od", "id", "height"):
         found = [h for h in header if h in (f"{key}_mm", f"{key}_m")]
         if not found:
             raise DimensionError(
-                f"{where}: header must name kind,od_mm,id_mm,height_mm (or *_m for metres), got {lines[0][1].strip()}"
+                f"{where}: header must name kind,od_mm,id_mm,height_mm (or *_m for metres), got {table.header_text}"
             )
         cols[key] = (header.index(found[0]), units[found[0]])
     k_kind = header.index("kind") if "kind" in header else None
     kinds, od, idd, h = [], [], [], []
-    for lineno, ln in lines[1:]:
-        row = [c.strip() for c in next(csv.reader([ln]))]
+    for lineno, row in table.rows:
         try:
             vals = {k: float(row[i]) * s for k, (i, s) in cols.items()}
         except (ValueError, IndexError):
-            raise DimensionError(f"{where} line {lineno}: expected numbers for od, id and height: {ln.strip()}") from None
+            raise DimensionError(f"{where} line {lineno}: expected numbers for od, id and height: {','.join(row)}") from None
         kind = (row[k_kind].lower() if k_kind is not None and k_kind < len(row) and row[k_kind] else "ring")
         if kind not in ("ring", "sleeve"):
             raise DimensionError(f"{where} line {lineno}: kind must be ring or sleeve, got {kind!r}")
@@ -127,14 +126,8 @@ def load_ring_sizes(path) -> RingSizes:
     DimensionError
         Naming the file and line when the table is missing, unreadable or impossible.
     """
-    p = Path(path)
-    if not p.is_file():
-        raise DimensionError(f"--sizes {path}: file not found")
-    try:
-        text = p.read_text(encoding="utf-8-sig")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise DimensionError(f"--sizes {path}: cannot be read ({exc.__class__.__name__})") from None
-    return _parse_ring_sizes(text, f"--sizes {path}")
+    where = f"--sizes {path}"
+    return _ring_sizes(read_table(path, where, DimensionError), where)
 
 
 def bend_radius(core_od, core_id, height, conductor_od):
