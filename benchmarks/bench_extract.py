@@ -5,7 +5,7 @@ zeros the way low-cost analysers do) in a temporary folder, then times, on the s
 
 * scikit-rf's Touchstone parser alone (``skrf.io.touchstone.Touchstone(path)``), and
 * cmcheck's extraction: safe reading and validation, series-through Z, validity mask and the
-  band summary with a pass/fail limit (``cmcheck.batch.evaluate_files``).
+  band summary with a pass/fail limit (``cmcheck.measurement.qa.evaluate_files``).
 
 It prints the ratio of the two (goal: at most 1.25, i.e. ≤ 25 % overhead over parsing) and
 files per second. Each timing is the best of ``--repeat`` rounds, measured in this one run.
@@ -59,7 +59,7 @@ def main() -> None:
 
     from skrf.io.touchstone import Touchstone
 
-    from cmcheck.batch import Limits, evaluate_files
+    from cmcheck.measurement.qa import Limits, evaluate_files
     from cmcheck.units import parse_band
 
     with tempfile.TemporaryDirectory() as d:

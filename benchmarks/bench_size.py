@@ -3,12 +3,12 @@
 Run: python benchmarks/bench_size.py [--sample N] [--repeat N]
 
 Prints, all measured in this one run on this machine:
-- wall time of ``cmcheck.size.size`` on the default design space (every built-in material and
+- wall time of ``cmcheck.design.search.size`` on the default design space (every built-in material and
   ring size, 1–4 stacked cores, every turn count that fits, 1 mm wire as the CLI's default,
   1.8–30 MHz at 201 points) — best of ``--repeat`` runs after one warm-up;
 - candidate-frequency evaluations per second;
 - speedup over evaluating the same candidates one at a time through the public
-  ``cmcheck.choke.predict`` (a random sample of ``--sample`` candidates is timed one by one
+  ``cmcheck.model.choke.predict`` (a random sample of ``--sample`` candidates is timed one by one
   and the time extrapolated to all of them), and over the bare model ``ChokeDesign.impedance``
   one at a time (no self-resonance search), for a fairer view;
 - ratio of a bare numpy complex kernel on the same (candidates × frequencies) shape to the
@@ -23,13 +23,13 @@ import timeit
 
 import numpy as np
 
-from cmcheck.choke import ChokeDesign, predict
-from cmcheck.cores import RingCore
-from cmcheck.materials import builtin_materials
-from cmcheck.ringsizes import builtin_ring_sizes
-from cmcheck.size import SizeSpec, _geometry, size
+from cmcheck.model.choke import ChokeDesign, predict
+from cmcheck.model.cores import RingCore
+from cmcheck.model.materials import builtin_materials
+from cmcheck.design.catalogue import builtin_ring_sizes
+from cmcheck.design.search import SizeSpec, _geometry, size
 from cmcheck.units import parse_band
-from cmcheck.winding import Wire, Winding
+from cmcheck.model.winding import Wire, Winding
 
 
 def best_of(fn, repeat: int) -> float:

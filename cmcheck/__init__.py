@@ -3,13 +3,13 @@
 SI units everywhere inside (Hz, m, H, F, Ω, W); :mod:`cmcheck.units` parses what people type.
 """
 
-from .choke import ChokeDesign, Prediction, air_core_inductance, choke_impedance, predict, winding_impedance
-from .cores import FactorCore, RingCore, effective_parameters, ring_core_factors, sleeve
+from .model.choke import ChokeDesign, Prediction, air_core_inductance, choke_impedance, predict, winding_impedance
+from .model.cores import FactorCore, RingCore, effective_parameters, ring_core_factors, sleeve
 from .curve import ImpedanceCurve
 from .errors import CmcheckError, CmcheckWarning
-from .materials import Material, builtin_materials, get_material, load_material_csv
+from .model.materials import Material, builtin_materials, get_material, load_material_csv
 from .units import Band, parse_band, parse_frequency, parse_length
-from .winding import Cable, Winding, Wire
+from .model.winding import Cable, Winding, Wire
 
 __version__ = "0.1.0"
 
@@ -41,11 +41,11 @@ __all__ = [
     "winding_impedance",
 ]
 
-# Sizing and comparing (the search itself is cmcheck.size.size(SizeSpec(...))).
-from .compare import compare_materials, worst_case_reduction  # noqa: E402
-from .ringsizes import RingSizes, builtin_ring_sizes, load_ring_sizes  # noqa: E402
-from .size import SizeResult, SizeSpec  # noqa: E402
-from .thermal import Drive  # noqa: E402
+# Sizing and comparing (the search itself is cmcheck.design.search.size(SizeSpec(...))).
+from .design.compare import compare_materials, worst_case_reduction  # noqa: E402
+from .design.catalogue import RingSizes, builtin_ring_sizes, load_ring_sizes  # noqa: E402
+from .design.search import SizeResult, SizeSpec  # noqa: E402
+from .design.heat import Drive  # noqa: E402
 
 __all__ += [
     "Drive",
@@ -59,11 +59,11 @@ __all__ += [
 ]
 
 # Measurements: safe Touchstone reading, S→Z, validity, mixed mode, batch limits.
-from .balance import Balance  # noqa: E402
-from .batch import FileResult, Limits, Summary, evaluate_files, exit_status, summarize  # noqa: E402
-from .measure import Extraction, Fixture, extract, extract_legs, reflection_z, series_through_z, shunt_through_z  # noqa: E402
-from .touchstone import SParameters, read_touchstone  # noqa: E402
-from .validity import Accuracy, Validity  # noqa: E402
+from .measurement.balance import Balance  # noqa: E402
+from .measurement.qa import FileResult, Limits, Summary, evaluate_files, exit_status, summarize  # noqa: E402
+from .measurement.methods import Extraction, Fixture, extract, extract_legs, reflection_z, series_through_z, shunt_through_z  # noqa: E402
+from .measurement.touchstone import SParameters, read_touchstone  # noqa: E402
+from .measurement.validity import Accuracy, Validity  # noqa: E402
 
 __all__ += [
     "Accuracy",

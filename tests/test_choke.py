@@ -7,7 +7,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from cmcheck.choke import (
+from cmcheck.model.choke import (
     ChokeDesign,
     air_core_inductance,
     choke_impedance,
@@ -15,11 +15,11 @@ from cmcheck.choke import (
     predict,
     winding_impedance,
 )
-from cmcheck.cores import RingCore
-from cmcheck.materials import Debye, Material, builtin_materials, load_material_csv
-from cmcheck.report import write_touchstone
+from cmcheck.model.cores import RingCore
+from cmcheck.model.materials import Debye, Material, builtin_materials, load_material_csv
+from cmcheck.reporting.files import write_touchstone
 from cmcheck.units import Band
-from cmcheck.winding import Cable, Winding, Wire
+from cmcheck.model.winding import Cable, Winding, Wire
 
 MU0 = 4e-7 * math.pi
 

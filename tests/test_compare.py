@@ -8,13 +8,13 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from cmcheck.choke import ChokeDesign, predict
-from cmcheck.compare import compare_materials, current_ratio, worst_case_reduction
-from cmcheck.cores import RingCore
+from cmcheck.model.choke import ChokeDesign, predict
+from cmcheck.design.compare import compare_materials, current_ratio, worst_case_reduction
+from cmcheck.model.cores import RingCore
 from cmcheck.errors import DesignError
-from cmcheck.materials import Material, Tabulated, builtin_materials
+from cmcheck.model.materials import Material, Tabulated, builtin_materials
 from cmcheck.units import Band
-from cmcheck.winding import MU0, Cable, Winding
+from cmcheck.model.winding import MU0, Cable, Winding
 
 
 def test_resistive_5k_choke_gives_14_15_db():

@@ -7,7 +7,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from cmcheck.cores import FactorCore, RingCore, effective_parameters, ring_core_factors, sleeve
+from cmcheck.model.cores import FactorCore, RingCore, effective_parameters, ring_core_factors, sleeve
 from cmcheck.errors import DimensionError
 
 

@@ -341,7 +341,7 @@ def test_no_differential_transmission_fails_a_cmrr_limit(run_cli, tmp_path):
 
 
 def test_cal_error_widens_or_narrows_validity(run_cli, tmp_path):
-    # First-order error model (cmcheck.validity): a smaller calibration residual resolves lower Z
+    # First-order error model (cmcheck.measurement.validity): a smaller calibration residual resolves lower Z
     # series-through; a 5 Ω point is invalid at 1 % and valid at 0.1 %.
     f = np.array([1e6, 2e6, 3e6])
     p = _s2p(tmp_path / "low.s2p", np.array([5.0, 50.0, 500.0]) + 0j, f=f)
@@ -352,8 +352,8 @@ def test_cal_error_widens_or_narrows_validity(run_cli, tmp_path):
 
 
 def test_help_ranges_follow_the_error_model(run_cli):
-    # The ranges printed in the help come from cmcheck.validity with the default settings.
-    from cmcheck.validity import Accuracy, reflection_error, through_error
+    # The ranges printed in the help come from cmcheck.measurement.validity with the default settings.
+    from cmcheck.measurement.validity import Accuracy, reflection_error, through_error
 
     a = Accuracy()
     z = np.geomspace(0.1, 1e7, 20001)

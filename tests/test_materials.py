@@ -8,7 +8,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from cmcheck.errors import MaterialError
-from cmcheck.materials import (
+from cmcheck.model.materials import (
     builtin_materials,
     damped_resonance_permeability,
     debye_permeability,

@@ -16,7 +16,7 @@ import skrf.media
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from cmcheck.balance import (
+from cmcheck.measurement.balance import (
     amplitude_imbalance_db,
     cmrr_db,
     common_mode_series_z,
@@ -28,7 +28,7 @@ from cmcheck.balance import (
 )
 from cmcheck.curve import series_s21
 from cmcheck.errors import MeasurementError, TouchstoneError
-from cmcheck.measure import (
+from cmcheck.measurement.methods import (
     Fixture,
     extract,
     extract_legs,
@@ -37,8 +37,8 @@ from cmcheck.measure import (
     series_through_z,
     shunt_through_z,
 )
-from cmcheck.touchstone import SParameters
-from cmcheck.validity import Accuracy, reflection_error, through_error
+from cmcheck.measurement.touchstone import SParameters
+from cmcheck.measurement.validity import Accuracy, reflection_error, through_error
 
 F = np.geomspace(1e6, 100e6, 41)
 Z0 = 50.0

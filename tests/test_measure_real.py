@@ -7,10 +7,10 @@ import warnings
 import numpy as np
 import pytest
 
-from cmcheck.batch import Limits, evaluate_files, exit_status
+from cmcheck.measurement.qa import Limits, evaluate_files, exit_status
 from cmcheck.errors import CmcheckWarning
-from cmcheck.measure import extract
-from cmcheck.touchstone import read_touchstone
+from cmcheck.measurement.methods import extract
+from cmcheck.measurement.touchstone import read_touchstone
 from cmcheck.units import parse_band
 
 

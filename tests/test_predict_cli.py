@@ -12,11 +12,11 @@ import sys
 import numpy as np
 import pytest
 
-from cmcheck.choke import ChokeDesign, predict
-from cmcheck.cores import RingCore
-from cmcheck.materials import builtin_materials
+from cmcheck.model.choke import ChokeDesign, predict
+from cmcheck.model.cores import RingCore
+from cmcheck.model.materials import builtin_materials
 from cmcheck.units import Band
-from cmcheck.winding import Cable
+from cmcheck.model.winding import Cable
 
 DESIGN = ["--material", "nizn-800", "--od", "61mm", "--id", "35.6mm", "--height", "12.7mm", "--turns", "8", "--cable-od", "5mm"]
 
@@ -32,7 +32,7 @@ def test_predict_table_and_outputs(run_cli, tmp_path):
         assert key in data
     assert {"min_resistance_ohm", "self_resonance_hz"} <= set(data["summary"])
     # The JSON agrees with the library called directly (the CLI only renders).
-    from cmcheck.winding import Winding
+    from cmcheck.model.winding import Winding
 
     d = ChokeDesign(RingCore(61e-3, 35.6e-3, 12.7e-3), builtin_materials()["nizn-800"], Winding(8, Cable(5e-3)))
     p = predict(d, Band.single(1.8e6, 30e6))

@@ -7,10 +7,10 @@ these tests skip when that folder is absent.
 import numpy as np
 import pytest
 
-from cmcheck.choke import ChokeDesign
-from cmcheck.cores import FactorCore, RingCore
-from cmcheck.materials import builtin_materials
-from cmcheck.winding import Winding, Wire
+from cmcheck.model.choke import ChokeDesign
+from cmcheck.model.cores import FactorCore, RingCore
+from cmcheck.model.materials import builtin_materials
+from cmcheck.model.winding import Winding, Wire
 
 
 def _reflection_z(path):

@@ -5,10 +5,10 @@ from pathlib import Path
 
 import pytest
 
-from cmcheck.choke import air_core_inductance, winding_impedance
-from cmcheck.cores import RingCore
+from cmcheck.model.choke import air_core_inductance, winding_impedance
+from cmcheck.model.cores import RingCore
 from cmcheck.units import awg_diameter
-from cmcheck.winding import skin_depth
+from cmcheck.model.winding import skin_depth
 
 TABLE = Path(__file__).resolve().parents[1] / "reference_data" / "published_values.csv"
 

@@ -1,4 +1,4 @@
-"""The sizing search (cmcheck.size) and `cmcheck size`.
+"""The sizing search (cmcheck.design.search) and `cmcheck size`.
 
 The acceptance rule of the sizing issue is checked for every design returned in several
 scenarios: re-evaluated through the public ``predict`` with the same material, dimensions,
@@ -10,15 +10,15 @@ import math
 import numpy as np
 import pytest
 
-import cmcheck.size as size_mod
-from cmcheck.choke import ChokeDesign, predict
-from cmcheck.cores import RingCore
-from cmcheck.materials import builtin_materials, get_material
-from cmcheck.ringsizes import RingSizes, bend_radius, builtin_ring_sizes, load_ring_sizes
-from cmcheck.size import DEFAULT_BEND_RATIO, SizeSpec, size
-from cmcheck.thermal import Drive, dissipation_from_voltage, temperature_rise
+import cmcheck.design.search as size_mod
+from cmcheck.model.choke import ChokeDesign, predict
+from cmcheck.model.cores import RingCore
+from cmcheck.model.materials import builtin_materials, get_material
+from cmcheck.design.catalogue import RingSizes, bend_radius, builtin_ring_sizes, load_ring_sizes
+from cmcheck.design.search import DEFAULT_BEND_RATIO, SizeSpec, size
+from cmcheck.design.heat import Drive, dissipation_from_voltage, temperature_rise
 from cmcheck.units import parse_band
-from cmcheck.winding import Cable, Winding, Wire, max_turns_single_layer
+from cmcheck.model.winding import Cable, Winding, Wire, max_turns_single_layer
 
 MATS = builtin_materials()
 
@@ -68,7 +68,7 @@ def test_every_design_meets_target_through_predict(band_text, target, conductor,
         if spec.cp_factor == 1.0:
             # Leaving Cp to the model's own estimate gives the same answer.
             _recheck(data, band, target, spec.points, spec.criterion, cp_given=False)
-        # Physical fit: one layer through the hole (elementary geometry, cmcheck.winding).
+        # Physical fit: one layer through the hole (elementary geometry, cmcheck.model.winding).
         assert d.design.winding.turns <= max_turns_single_layer(data["id_m"], conductor.outer_diameter)
         if isinstance(conductor, Cable) and d.design.winding.turns > 1:
             assert d.bend_radius_m >= spec.bend_limit - 1e-12
@@ -172,7 +172,7 @@ def test_builtin_ring_sizes_are_generic_dimensions():
     assert np.all(t.id < t.od) and np.all(t.height > 0)
     from importlib import resources
 
-    text = resources.files("cmcheck").joinpath("data/ring_sizes.csv").read_text()
+    text = resources.files("cmcheck").joinpath("design/data/ring_sizes.csv").read_text()
     for line in text.splitlines():
         if line and not line.startswith("#") and not line.startswith("kind"):
             kind, *nums = line.split(",")

@@ -1,4 +1,4 @@
-"""Heat and flux checks of cmcheck.thermal."""
+"""Heat and flux checks of cmcheck.design.heat."""
 
 import math
 
@@ -7,9 +7,9 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from cmcheck.cores import RingCore, ring_surface_area
+from cmcheck.model.cores import RingCore, ring_surface_area
 from cmcheck.errors import DesignError
-from cmcheck.thermal import (
+from cmcheck.design.heat import (
     Drive,
     dissipation_from_current,
     dissipation_from_voltage,

@@ -15,7 +15,7 @@ import pytest
 import skrf
 
 from cmcheck.errors import CmcheckWarning, TouchstoneError
-from cmcheck.touchstone import read_touchstone
+from cmcheck.measurement.touchstone import read_touchstone
 
 F = np.linspace(1e6, 50e6, 11)
 
@@ -230,7 +230,7 @@ def test_damaged_files_read_or_refuse_cleanly(data):
     # Issue 3: damaged input is either read into a valid sweep or refused with a one-line
     # TouchstoneError naming the file, never another exception (common practice for parsers
     # of untrusted input, no published source).
-    from cmcheck.touchstone import parse_touchstone_bytes
+    from cmcheck.measurement.touchstone import parse_touchstone_bytes
 
     raw = _two_port_text().encode()
     kind = data.draw(st.sampled_from(["truncate", "delete", "insert", "duplicate", "swap"]))

@@ -9,7 +9,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from cmcheck.errors import CmcheckWarning, DimensionError, WindingError
-from cmcheck.winding import (
+from cmcheck.model.winding import (
     Cable,
     Winding,
     Wire,

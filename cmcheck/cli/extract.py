@@ -10,12 +10,12 @@ import numpy as np
 import typer
 from rich.markup import escape
 
-from ..batch import FileResult, Limits, evaluate_files, exit_status, model_error, result_to_dict
+from ..measurement.qa import FileResult, Limits, evaluate_files, exit_status, model_error, result_to_dict
 from ..curve import ImpedanceCurve
 from ..errors import CmcheckError, MeasurementError, UnitError
-from ..measure import METHODS, Accuracy, Fixture
-from ..report import SAFETY_NOTES, atomic_write, check_outputs, plot_curves, staged_outputs, write_csv, write_json
-from ..touchstone import read_touchstone
+from ..measurement.methods import METHODS, Accuracy, Fixture
+from ..reporting.files import SAFETY_NOTES, atomic_write, check_outputs, plot_curves, staged_outputs, write_csv, write_json
+from ..measurement.touchstone import read_touchstone
 from ..units import format_quantity, parse_resistance
 from . import options as o
 from .app import app

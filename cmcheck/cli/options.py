@@ -11,12 +11,12 @@ from typing import Annotated, Optional
 
 import typer
 
-from ..choke import ChokeDesign
-from ..cores import FactorCore, RingCore
+from ..model.choke import ChokeDesign
+from ..model.cores import FactorCore, RingCore
 from ..errors import CmcheckError, UnitError
-from ..materials import get_material
+from ..model.materials import get_material
 from ..units import Band, parse_band, parse_capacitance, parse_length, parse_wire_diameter
-from ..winding import Cable, Winding, Wire
+from ..model.winding import Cable, Winding, Wire
 
 DESIGN_PANEL = "Design (core, winding)"
 OUTPUT_PANEL = "Outputs"
@@ -111,7 +111,7 @@ def design_from_options(
     cable_od: str | None = None,
     cp: str | None = None,
 ) -> ChokeDesign:
-    """Build a :class:`~cmcheck.choke.ChokeDesign` from option text; errors name the option."""
+    """Build a :class:`~cmcheck.model.choke.ChokeDesign` from option text; errors name the option."""
     if not material:
         raise CmcheckError("--material is required (a built-in name or a CSV file)")
     if turns is None:

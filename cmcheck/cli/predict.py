@@ -8,10 +8,10 @@ from typing import Annotated, Optional
 import numpy as np
 import typer
 
-from ..choke import predict as predict_choke
-from ..cores import RingCore
-from ..materials import builtin_materials, get_material
-from ..report import (
+from ..model.choke import predict as predict_choke
+from ..model.cores import RingCore
+from ..model.materials import builtin_materials, get_material
+from ..reporting.files import (
     SAFETY_NOTES,
     check_outputs,
     curve_rows,

@@ -10,15 +10,15 @@ from typing import Annotated, Optional
 import numpy as np
 import typer
 
-from ..compare import DEFAULT_LINE_R_MAX, DEFAULT_LINE_X_MAX, compare_materials, comparison_curves
+from ..design.compare import DEFAULT_LINE_R_MAX, DEFAULT_LINE_X_MAX, compare_materials, comparison_curves
 from ..errors import CmcheckWarning, DesignError, UnitError
-from ..materials import builtin_materials, get_material
-from ..report import SAFETY_NOTES, check_outputs, plot_curves, staged_outputs, write_json
-from ..ringsizes import builtin_ring_sizes, load_ring_sizes
-from ..size import DEFAULT_BEND_RATIO, DEFAULT_MAX_CORES, DEFAULT_TARGET_OHM, SizeResult, SizeSpec, format_rise, size as run_size
-from ..thermal import DEFAULT_MAX_RISE_K, Drive
+from ..model.materials import builtin_materials, get_material
+from ..reporting.files import SAFETY_NOTES, check_outputs, plot_curves, staged_outputs, write_json
+from ..design.catalogue import builtin_ring_sizes, load_ring_sizes
+from ..design.search import DEFAULT_BEND_RATIO, DEFAULT_MAX_CORES, DEFAULT_TARGET_OHM, SizeResult, SizeSpec, format_rise, size as run_size
+from ..design.heat import DEFAULT_MAX_RISE_K, Drive
 from ..units import format_quantity, parse_current, parse_length, parse_power, parse_resistance, parse_voltage, parse_wire_diameter
-from ..winding import Cable, Wire
+from ..model.winding import Cable, Wire
 from . import options as o
 from .app import EXIT_LIMIT_FAILED, app
 from .render import console, err_console, print_notes, table

@@ -14,8 +14,8 @@ from importlib import resources
 
 import numpy as np
 
-from .errors import DimensionError
-from .tables import Table, parse_table, read_table
+from ..errors import DimensionError
+from ..tables import Table, parse_table, read_table
 
 __all__ = ["RingSizes", "bend_radius", "builtin_ring_sizes", "load_ring_sizes"]
 
@@ -108,8 +108,8 @@ def _ring_sizes(table: Table, where: str, source: str | None = None) -> RingSize
 
 @lru_cache(maxsize=1)
 def builtin_ring_sizes() -> RingSizes:
-    """The built-in generic ring and sleeve sizes (``cmcheck/data/ring_sizes.csv``)."""
-    text = resources.files("cmcheck").joinpath("data/ring_sizes.csv").read_text(encoding="utf-8")
+    """The built-in generic ring and sleeve sizes (``cmcheck/design/data/ring_sizes.csv``)."""
+    text = resources.files("cmcheck").joinpath("design/data/ring_sizes.csv").read_text(encoding="utf-8")
     return _parse_ring_sizes(text, "built-in ring sizes", source="built-in")
 
 

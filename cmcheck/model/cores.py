@@ -11,7 +11,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import DimensionError
+from ..errors import DimensionError
 
 __all__ = [
     "FactorCore",

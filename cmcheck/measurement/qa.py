@@ -16,10 +16,10 @@ from typing import Callable, Iterable, Sequence
 
 import numpy as np
 
-from .errors import CmcheckError, MeasurementError
-from .measure import Accuracy, Extraction, Fixture, extract, extract_legs
+from ..errors import CmcheckError, MeasurementError
+from .methods import Accuracy, Extraction, Fixture, extract, extract_legs
 from .touchstone import read_touchstone
-from .units import Band, format_quantity
+from ..units import Band, format_quantity
 
 __all__ = [
     "FileResult",
@@ -311,10 +311,10 @@ def evaluate_files(
     paths : sequence of path-like
         Touchstone files, one unit each.
     method, z0, accuracy, fixture, balanced_ports
-        As for :func:`cmcheck.measure.extract`.
+        As for :func:`cmcheck.measurement.methods.extract`.
     limits : Limits
     legs : (path, path), optional
-        Two two-port sweeps of one balun (see :func:`cmcheck.measure.extract_legs`),
+        Two two-port sweeps of one balun (see :func:`cmcheck.measurement.methods.extract_legs`),
         evaluated as one more result.
     on_done : callable, optional
         Called with each :class:`FileResult` as it is finished (progress display).

@@ -14,7 +14,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import CmcheckWarning, DimensionError, WindingError
+from ..errors import CmcheckWarning, DimensionError, WindingError
 
 __all__ = [
     "COPPER_RESISTIVITY",

@@ -1,8 +1,8 @@
 """Sizing: search material × ring size × stacked cores × turns for chokes that meet a target.
 
-Every candidate is evaluated with the model of :func:`cmcheck.choke.predict` — the same L0,
+Every candidate is evaluated with the model of :func:`cmcheck.model.choke.predict` — the same L0,
 µ(f), conductor resistance and stray-capacitance estimate, through
-:func:`cmcheck.choke.choke_impedance` — but all at once, as arrays shaped
+:func:`cmcheck.model.choke.choke_impedance` — but all at once, as arrays shaped
 (candidates, frequencies), one chunk at a time to bound memory. µ(f) is evaluated once per
 material and broadcast; geometry (core factor, turn length, Cp) once per core-and-turns
 combination and shared by all materials.
@@ -23,14 +23,14 @@ from typing import Callable, Sequence
 
 import numpy as np
 
-from .choke import ChokeDesign, Prediction, air_core_inductance, choke_impedance, predict
-from .cores import RingCore, effective_parameters, ring_core_factors, ring_surface_area
-from .errors import DesignError
-from .materials import Material
-from .ringsizes import RingSizes, bend_radius, builtin_ring_sizes, load_ring_sizes
-from .thermal import DEFAULT_MAX_RISE_K, Drive, heat_check
-from .units import Band
-from .winding import Cable, Winding, Wire, max_turns_single_layer, stray_capacitance, turn_length
+from ..model.choke import ChokeDesign, Prediction, air_core_inductance, choke_impedance, predict
+from ..model.cores import RingCore, effective_parameters, ring_core_factors, ring_surface_area
+from ..errors import DesignError
+from ..model.materials import Material
+from .catalogue import RingSizes, bend_radius, builtin_ring_sizes, load_ring_sizes
+from .heat import DEFAULT_MAX_RISE_K, Drive, heat_check
+from ..units import Band
+from ..model.winding import Cable, Winding, Wire, max_turns_single_layer, stray_capacitance, turn_length
 
 __all__ = [
     "DEFAULT_BEND_RATIO",
@@ -171,7 +171,7 @@ class SizedDesign:
     """One design from the search, with its figures of merit.
 
     ``min_resistance_ohm`` (and ``min_impedance_ohm``) come from the vectorised search; the
-    self-resonance and resistive fraction from :func:`cmcheck.choke.predict` on the same design
+    self-resonance and resistive fraction from :func:`cmcheck.model.choke.predict` on the same design
     (``prediction``), which reproduces the minimum.
     """
 
@@ -464,9 +464,9 @@ def size(spec: SizeSpec, progress: Callable[[int, int], None] | None = None) -> 
 
     References
     ----------
-    Model and sources as :func:`cmcheck.choke.predict` (IEC 60205 core factor, IEV 221-03-06
+    Model and sources as :func:`cmcheck.model.choke.predict` (IEC 60205 core factor, IEV 221-03-06
     winding impedance, Massarini & Kazimierczuk 1997 stray capacitance); heat per
-    :mod:`cmcheck.thermal` (McLyman, 3rd ed., ch. 6).
+    :mod:`cmcheck.design.heat` (McLyman, 3rd ed., ch. 6).
     """
     t0 = time.perf_counter()
     band = spec.band
@@ -481,7 +481,7 @@ def size(spec: SizeSpec, progress: Callable[[int, int], None] | None = None) -> 
     closest = diagnosis = None
     if not scan.passing:
         # Only a failed search needs the diagnosis (which re-runs the search itself).
-        from .size_diagnosis import diagnose, diagnose_heat, diagnose_nothing_fits
+        from .diagnosis import diagnose, diagnose_heat, diagnose_nothing_fits
     if scan.passing:
         cols = [np.concatenate([p[i] for p in scan.passing]) for i in range(8)]
         designs = _short_list(spec, geo, *cols)

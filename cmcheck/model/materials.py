@@ -17,8 +17,8 @@ from typing import Protocol
 
 import numpy as np
 
-from .errors import MaterialError
-from .tables import read_table
+from ..errors import MaterialError
+from ..tables import read_table
 
 __all__ = [
     "Debye",
@@ -292,7 +292,7 @@ _MODELS = {"debye": Debye, "damped_resonance": DampedResonance, "two_component":
 
 @lru_cache(maxsize=1)
 def _builtin_table() -> tuple[Material, ...]:
-    text = resources.files("cmcheck").joinpath("data/materials.json").read_text(encoding="utf-8")
+    text = resources.files("cmcheck").joinpath("model/data/materials.json").read_text(encoding="utf-8")
     out = []
     for entry in json.loads(text)["materials"]:
         model = _MODELS[entry["model"]](**entry["parameters"])
@@ -355,7 +355,7 @@ def load_material_csv(path) -> Material:
 
 def save_material_csv(path, frequency_hz, mu, comments=()) -> None:
     """Write µ' − jµ'' against frequency [Hz] in the material CSV format (atomically)."""
-    from .report import write_csv  # local: report imports plotting helpers
+    from ..reporting.files import write_csv  # local: report imports plotting helpers
 
     mu = np.asarray(mu, dtype=complex)
     rows = [[f"{f:.9g}", f"{m.real:.9g}", f"{-m.imag:.9g}"] for f, m in zip(np.asarray(frequency_hz, float), mu)]

@@ -20,8 +20,8 @@ from typing import Callable, Iterable, Sequence
 
 import numpy as np
 
-from .curve import ImpedanceCurve, true_runs
-from .errors import CmcheckError
+from ..curve import ImpedanceCurve, true_runs
+from ..errors import CmcheckError
 
 __all__ = [
     "SAFETY_NOTES",

@@ -14,10 +14,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from .cores import FactorCore, RingCore
-from .curve import ImpedanceCurve, resistive_ranges, self_resonance
-from .errors import CmcheckWarning
+from ..curve import ImpedanceCurve, resistive_ranges, self_resonance
+from ..errors import CmcheckWarning
 from .materials import Material
-from .units import Band
+from ..units import Band
 from .winding import MU0, Cable, Winding, check_fit, stray_capacitance, turn_length
 
 __all__ = [

@@ -14,7 +14,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import MeasurementError
+from ..errors import MeasurementError
 
 __all__ = [
     "Balance",

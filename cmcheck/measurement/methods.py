@@ -9,7 +9,7 @@ Three ways of measuring an impedance Z with a two-port analyser of reference imp
 * **reflection** (Z across port 1): Z = Z0·(1 + S11)/(1 − S11), best near Z0.
 
 Each point carries an estimate of its relative error and a validity mask
-(:mod:`cmcheck.validity`); open/short fixture residuals can be removed first. Everything here
+(:mod:`cmcheck.measurement.validity`); open/short fixture residuals can be removed first. Everything here
 is a vectorised function of numpy arrays.
 """
 
@@ -21,8 +21,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from .balance import Balance, common_mode_series_z, four_port_balance, legs_balance, three_port_balance
-from .curve import ImpedanceCurve
-from .errors import CmcheckWarning, MeasurementError, TouchstoneError
+from ..curve import ImpedanceCurve
+from ..errors import CmcheckWarning, MeasurementError, TouchstoneError
 from .touchstone import SParameters
 from .validity import Accuracy, Validity, balance_validity, impedance_validity, reflection_error, through_error
 
@@ -306,7 +306,7 @@ def extract(
     Parameters
     ----------
     sweep : SParameters
-        From :func:`cmcheck.touchstone.read_touchstone`.
+        From :func:`cmcheck.measurement.touchstone.read_touchstone`.
     method : {"auto", "series", "shunt", "reflect", "mixed"}
         ``auto``: 1 port → reflect, 2 → series, 3 or 4 → mixed.
     z0 : float, optional
@@ -419,12 +419,12 @@ def extract_legs(leg_p: SParameters, leg_n: SParameters, *, z0: float | None = N
     Returns
     -------
     Extraction
-        Method ``mixed`` with a ``legs`` :class:`~cmcheck.balance.Balance`, on leg_p's
+        Method ``mixed`` with a ``legs`` :class:`~cmcheck.measurement.balance.Balance`, on leg_p's
         frequencies (leg_n interpolated where the grids differ, with a warning).
 
     References
     ----------
-    Bockelman & Eisenstadt, IEEE T-MTT 43(7), 1995 (see :func:`cmcheck.balance.legs_balance`).
+    Bockelman & Eisenstadt, IEEE T-MTT 43(7), 1995 (see :func:`cmcheck.measurement.balance.legs_balance`).
     """
     for sw in (leg_p, leg_n):
         if sw.n_ports != 2:

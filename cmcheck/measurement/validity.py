@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .balance import Balance
-from .errors import MeasurementError
+from ..errors import MeasurementError
 
 __all__ = ["Accuracy", "Validity", "balance_validity", "impedance_validity", "reflection_error", "through_error"]
 

@@ -14,12 +14,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .choke import ChokeDesign, Prediction, predict
-from .cores import FactorCore, RingCore
-from .curve import ImpedanceCurve
-from .errors import DesignError
-from .units import Band
-from .winding import Winding
+from ..model.choke import ChokeDesign, Prediction, predict
+from ..model.cores import FactorCore, RingCore
+from ..curve import ImpedanceCurve
+from ..errors import DesignError
+from ..units import Band
+from ..model.winding import Winding
 
 __all__ = [
     "DEFAULT_LINE_R_MAX",
@@ -290,7 +290,7 @@ def compare_materials(
     band : Band
         Frequencies of interest [Hz].
     points : int
-        Log-spaced grid points over the band (edges included), as in :func:`cmcheck.choke.predict`.
+        Log-spaced grid points over the band (edges included), as in :func:`cmcheck.model.choke.predict`.
     line_r_max, line_x_max : float
         Bounds of the line's unknown common-mode impedance [Ω].
 
@@ -301,7 +301,7 @@ def compare_materials(
 
     References
     ----------
-    Choke model as :func:`cmcheck.choke.predict`; worst case per :func:`worst_case_reduction`.
+    Choke model as :func:`cmcheck.model.choke.predict`; worst case per :func:`worst_case_reduction`.
     """
     materials = list(materials)
     if not materials:

@@ -21,7 +21,7 @@ from pathlib import Path
 
 import numpy as np
 
-from .errors import CmcheckWarning, TouchstoneError
+from ..errors import CmcheckWarning, TouchstoneError
 
 __all__ = ["SParameters", "read_touchstone", "parse_touchstone_text", "MAX_FILE_BYTES"]
 

@@ -14,10 +14,10 @@ from dataclasses import replace
 
 import numpy as np
 
-from .materials import Material
-from .size import Diagnosis, SizedDesign, SizeSpec, _geometry, _scan, format_rise
-from .units import format_quantity
-from .winding import Cable
+from ..model.materials import Material
+from .search import Diagnosis, SizedDesign, SizeSpec, _geometry, _scan, format_rise
+from ..units import format_quantity
+from ..model.winding import Cable
 
 __all__ = ["diagnose", "diagnose_heat", "diagnose_nothing_fits", "half_permeability_hz"]
 

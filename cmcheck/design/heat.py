@@ -14,7 +14,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import DesignError
+from ..errors import DesignError
 
 __all__ = [
     "DEFAULT_MAX_RISE_K",
