@@ -209,7 +209,7 @@ def _two_port_text(n=12):
 
 def test_quick_path_equals_line_scan():
     # Self-consistency of our two parsing paths (both over scikit-rf's parser).
-    from cmcheck import touchstone as ts
+    from cmcheck.measurement import touchstone as ts
 
     text = _two_port_text()
     fast = ts._fast_parse(text, "q.s2p", ".s2p")
