@@ -4,12 +4,14 @@ SI units everywhere inside (Hz, m, H, F, Ω, W); :mod:`cmcheck.units` parses wha
 """
 
 from .model.choke import ChokeDesign, Prediction, air_core_inductance, choke_impedance, predict, winding_impedance
-from .model.cores import FactorCore, RingCore, effective_parameters, ring_core_factors, sleeve
+from .model.cores import Core, FactorCore, RingCore, effective_parameters, ring_core_factors, sleeve
+from .model.two_hole import TwoHoleCore
 from .curve import ImpedanceCurve
 from .errors import CmcheckError, CmcheckWarning
 from .model.materials import Material, builtin_materials, get_material, load_material_csv
 from .units import Band, parse_band, parse_frequency, parse_length
-from .model.winding import Cable, Winding, Wire
+from .model.conductors import Cable, Conductor, Wire
+from .model.winding import Winding
 
 __version__ = "0.1.0"
 
@@ -19,11 +21,14 @@ __all__ = [
     "ChokeDesign",
     "CmcheckError",
     "CmcheckWarning",
+    "Conductor",
+    "Core",
     "FactorCore",
     "ImpedanceCurve",
     "Material",
     "Prediction",
     "RingCore",
+    "TwoHoleCore",
     "Winding",
     "Wire",
     "air_core_inductance",
@@ -43,11 +48,12 @@ __all__ = [
 
 # Sizing and comparing (the search itself is cmcheck.design.search.size(SizeSpec(...))).
 from .design.compare import compare_materials, worst_case_reduction  # noqa: E402
-from .design.catalogue import RingSizes, builtin_ring_sizes, load_ring_sizes  # noqa: E402
+from .design.catalogue import CoreSizes, RingSizes, builtin_ring_sizes, load_ring_sizes  # noqa: E402
 from .design.search import SizeResult, SizeSpec  # noqa: E402
 from .design.heat import Drive  # noqa: E402
 
 __all__ += [
+    "CoreSizes",
     "Drive",
     "RingSizes",
     "SizeResult",

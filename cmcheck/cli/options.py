@@ -12,7 +12,8 @@ from typing import Annotated, Optional
 import typer
 
 from ..model.choke import ChokeDesign
-from ..model.cores import FactorCore, RingCore
+from ..model.cores import Core, FactorCore, RingCore
+from ..model.two_hole import TwoHoleCore
 from ..errors import CmcheckError, UnitError
 from ..model.materials import get_material
 from ..units import Band, parse_band, parse_capacitance, parse_length, parse_wire_diameter
@@ -50,6 +51,11 @@ Window = Annotated[
     Optional[str],
     typer.Option("--window", help="Hole diameter of a --core-factor core, with unit, for the fit check.", rich_help_panel=DESIGN_PANEL),
 ]
+Width = Annotated[Optional[str], typer.Option("--width", help="Two-hole core: width across both holes, with unit.", rich_help_panel=DESIGN_PANEL)]
+Thickness = Annotated[Optional[str], typer.Option("--thickness", help="Two-hole core: thickness, with unit.", rich_help_panel=DESIGN_PANEL)]
+Length = Annotated[Optional[str], typer.Option("--length", help="Two-hole core: length along the holes, with unit.", rich_help_panel=DESIGN_PANEL)]
+Hole = Annotated[Optional[str], typer.Option("--hole", help="Two-hole core: hole diameter, with unit.", rich_help_panel=DESIGN_PANEL)]
+HoleSpacing = Annotated[Optional[str], typer.Option("--hole-spacing", help="Two-hole core: centre distance of the holes, with unit.", rich_help_panel=DESIGN_PANEL)]
 Turns = Annotated[Optional[int], typer.Option("--turns", "-n", help="Number of turns (passes through the hole).", rich_help_panel=DESIGN_PANEL)]
 WireOpt = Annotated[
     Optional[str],
@@ -110,20 +116,35 @@ def design_from_options(
     insulation: str = "0",
     cable_od: str | None = None,
     cp: str | None = None,
+    width: str | None = None,
+    thickness: str | None = None,
+    length: str | None = None,
+    hole: str | None = None,
+    hole_spacing: str | None = None,
 ) -> ChokeDesign:
     """Build a :class:`~cmcheck.model.choke.ChokeDesign` from option text; errors name the option."""
     if not material:
         raise CmcheckError("--material is required (a built-in name or a CSV file)")
     if turns is None:
         raise CmcheckError("--turns is required")
-    if core_factor is not None:
+    two_hole = (("--width", width), ("--thickness", thickness), ("--length", length), ("--hole", hole),
+                ("--hole-spacing", hole_spacing))
+    if any(v is not None for _, v in two_hole):
+        if any(v is not None for v in (od, id, height, core_factor, window)):
+            raise CmcheckError("give either the two-hole core (--width/--thickness/--length/--hole/--hole-spacing) "
+                               "or --od/--id/--height or --core-factor, not both")
+        missing = [n for n, v in two_hole if v is None]
+        if missing:
+            raise CmcheckError(f"the two-hole core needs {', '.join(missing)}")
+        core: Core = TwoHoleCore(*(_length(n, v) for n, v in two_hole), cores)
+    elif core_factor is not None:
         if any(v is not None for v in (od, id, height)):
             raise CmcheckError("give either --core-factor or --od/--id/--height, not both")
         try:
             c1 = float(core_factor)
         except ValueError:
             raise UnitError(f"--core-factor: {core_factor!r} is not a number in 1/m") from None
-        core = FactorCore(c1 / max(cores, 1), _length("--window", window) if window else None)
+        core = FactorCore(c1, _length("--window", window) if window else None).stacked(cores)
     else:
         if window is not None:
             raise CmcheckError("--window describes a --core-factor core; a ring's hole is its --id")
@@ -145,3 +166,21 @@ def design_from_options(
             raise UnitError(f"--cp: {exc}") from None
     winding = Winding(turns, conductor, cap)
     return ChokeDesign(core, get_material(material), winding)
+
+
+#: The option that sets each defining dimension of a core (:meth:`~cmcheck.model.cores.Core.dimensions`).
+CORE_OPTIONS = {
+    "od_m": "--od", "id_m": "--id", "height_m": "--height",
+    "width_m": "--width", "thickness_m": "--thickness", "length_m": "--length", "hole_diameter_m": "--hole",
+    "hole_spacing_m": "--hole-spacing", "core_factor_per_m": "--core-factor", "window_diameter_m": "--window",
+}
+
+
+def core_options(core: Core) -> str:
+    """The options that describe ``core`` to ``predict``, e.g. ``--od 61mm --id 35.6mm --height 12.7mm --cores 2``."""
+    parts = []
+    for key, value in core.dimensions().items():
+        if value is None or key not in CORE_OPTIONS:
+            continue
+        parts.append(f"{CORE_OPTIONS[key]} {value:.5g}" if key.endswith("_per_m") else f"{CORE_OPTIONS[key]} {value * 1e3:.4g}mm")
+    return " ".join(parts + [f"--cores {core.stack}"])

@@ -9,7 +9,6 @@ import numpy as np
 import typer
 
 from ..model.choke import predict as predict_choke
-from ..model.cores import RingCore
 from ..model.materials import builtin_materials, get_material
 from ..reporting.files import (
     SAFETY_NOTES,
@@ -36,6 +35,11 @@ def predict(
     cores: o.Cores = 1,
     core_factor: o.CoreFactor = None,
     window: o.Window = None,
+    width: o.Width = None,
+    thickness: o.Thickness = None,
+    length: o.Length = None,
+    hole: o.Hole = None,
+    hole_spacing: o.HoleSpacing = None,
     turns: o.Turns = None,
     wire: o.WireOpt = None,
     insulation: o.Insulation = "0",
@@ -63,6 +67,7 @@ def predict(
     design = o.design_from_options(
         material=material, od=od, id=id, height=height, cores=cores, core_factor=core_factor,
         window=window, turns=turns, wire=wire, insulation=insulation, cable_od=cable_od, cp=cp,
+        width=width, thickness=thickness, length=length, hole=hole, hole_spacing=hole_spacing,
     )
     b = o.band_from_option(band)
     inputs = [material] if material and Path(material).is_file() else []
@@ -86,7 +91,7 @@ def predict(
     console.print(f"[bold]{design.describe()}[/bold]")
     core = design.core
     core_info = [f"C1 = Σl/A = {core.c1:.5g} 1/m"]
-    if isinstance(core, RingCore):
+    if None not in (core.le, core.ae, core.ve):
         core_info.append(f"le = {core.le * 1e3:.4g} mm, Ae = {core.ae * 1e6:.4g} mm², Ve = {core.ve * 1e9:.4g} mm³")
     wind_info = [f"L0 = {format_quantity(design.l0, 'H')}",
                  f"L(low f) = {format_quantity(s['low_frequency_inductance_h'], 'H')}",

@@ -94,8 +94,7 @@ def _w(p: float) -> str:
 
 
 def _core_text(design) -> str:
-    c = design.core
-    return f"{c.od * 1e3:.4g}×{c.id * 1e3:.4g}×{c.height * 1e3:.4g}"
+    return "×".join(f"{v * 1e3:.4g}" for v in design.core.dimensions().values())
 
 
 def _predict_command(d, band, cond) -> str:
@@ -104,8 +103,8 @@ def _predict_command(d, band, cond) -> str:
     conductor = (f"--cable-od {cond.od * 1e3:.4g}mm" if isinstance(cond, Cable)
                  else f"--wire {cond.diameter * 1e3:.4g}mm" + (f" --insulation {cond.insulation * 1e3:.4g}mm" if cond.insulation else ""))
     cp = f" --cp {d.design.cp * 1e12:.3g}pF" if d.design.cp_source == "given" else ""
-    return (f"cmcheck predict -m {d.design.material.name} --od {c.od * 1e3:.4g}mm --id {c.id * 1e3:.4g}mm "
-            f"--height {c.height * 1e3:.4g}mm --cores {c.stack} --turns {w.turns} {conductor}{cp} --band {band}")
+    return (f"cmcheck predict -m {d.design.material.name} {o.core_options(c)} --turns {w.turns} {conductor}{cp} "
+            f"--band {band}")
 
 
 class _LazyProgress:
@@ -163,7 +162,7 @@ def _render_size(result: SizeResult, band_text: str) -> None:
         for i, d in enumerate(designs, 1):
             v = d.min_resistance_ohm if s.criterion == "resistance" else d.min_impedance_ohm
             hz = d.min_resistance_hz if s.criterion == "resistance" else d.min_impedance_hz
-            core = f"{d.core.stack} × {_core_text(d.design)}" + (" sleeve" if d.kind == "sleeve" else "")
+            core = f"{d.core.stack} × {_core_text(d.design)}" + ("" if d.kind == "ring" else f" {d.kind}")
             row = [str(i), d.design.material.name, core, str(d.design.winding.turns), f"{v:,.0f}",
                    format_quantity(hz, "Hz", 3), _pct(d.margin),
                    format_quantity(d.self_resonance_hz, "Hz", 3) if d.self_resonance_hz else "–",
@@ -218,7 +217,7 @@ def size_command(
     wire: o.WireOpt = None,
     insulation: o.Insulation = "0",
     materials: MaterialsOpt = None,
-    sizes: Annotated[Optional[Path], typer.Option("--sizes", help="Extra core sizes: CSV kind,od_mm,id_mm,height_mm (kind ring or sleeve).", rich_help_panel=SEARCH_PANEL)] = None,
+    sizes: Annotated[Optional[Path], typer.Option("--sizes", help="Extra core sizes: CSV kind,od_mm,id_mm,height_mm (kind ring or sleeve) and/or width_mm,thickness_mm,length_mm,hole_mm,hole_spacing_mm (kind two-hole).", rich_help_panel=SEARCH_PANEL)] = None,
     builtin_sizes: Annotated[bool, typer.Option("--builtin-sizes/--no-builtin-sizes", help="Include the built-in generic ring and sleeve sizes.", rich_help_panel=SEARCH_PANEL)] = True,
     max_cores: Annotated[int, typer.Option("--max-cores", help="Stack 1 to this many identical cores.", min=1, max=50, rich_help_panel=SEARCH_PANEL)] = DEFAULT_MAX_CORES,
     max_turns: Annotated[Optional[int], typer.Option("--max-turns", help="Cap on turns (besides one layer through the hole).", min=1, rich_help_panel=SEARCH_PANEL)] = None,

@@ -1,8 +1,18 @@
-"""Generic ring and sleeve sizes for the sizing search, and the bend a cable takes round them.
+"""Core sizes for the sizing search: the built-in generic rings and sleeves, and users' tables.
 
 The built-in table (``data/ring_sizes.csv``) lists sizes by dimensions only, no makers or part
-numbers; users add their own with a file of the same columns. A sleeve (tubular bead) is a ring
-whose height is its length along the cable.
+numbers. Users add their own with a CSV file whose rows each have a kind; the catalogue turns
+every row into a core object (:class:`cmcheck.model.cores.Core`), and the search works on those.
+
+Kinds and their columns (millimetres ``*_mm`` or metres ``*_m``):
+
+- ``ring``: ``od``, ``id``, ``height`` (height of one ring);
+- ``sleeve``: the same, height = length along the cable (a ring by another name);
+- ``two-hole``: ``width`` (across both holes), ``thickness``, ``length`` (along the holes),
+  ``hole`` (diameter), ``hole_spacing`` (centre distance).
+
+One file may mix kinds: the header names every column any of its rows needs, and a row leaves
+the other kinds' cells empty. ``kind`` may be left out, meaning ring.
 """
 
 from __future__ import annotations
@@ -11,115 +21,162 @@ import math
 from dataclasses import dataclass
 from functools import lru_cache
 from importlib import resources
+from typing import Callable, Sequence
 
 import numpy as np
 
 from ..errors import DimensionError
+from ..model.cores import Core, RingCore, sleeve
+from ..model.cores import ring_bend_radius as bend_radius  # former home of the ring's bend radius
+from ..model.two_hole import TwoHoleCore
 from ..tables import Table, parse_table, read_table
 
-__all__ = ["RingSizes", "bend_radius", "builtin_ring_sizes", "load_ring_sizes"]
+__all__ = ["CoreSizes", "KINDS", "RingSizes", "bend_radius", "builtin_ring_sizes", "load_ring_sizes"]
 
 
+def _mm(v: float) -> str:
+    return f"{v * 1e3:.4g}"
+
+
+@dataclass(frozen=True)
+class _Kind:
+    columns: tuple[str, ...]
+    build: Callable[..., Core]
+    label: Callable[..., str]
+
+
+#: How a row of each kind becomes a core: its columns (without unit suffix), in the order the
+#: builder takes them, and a short label of its dimensions.
+KINDS: dict[str, _Kind] = {
+    "ring": _Kind(("od", "id", "height"), lambda od, id, h: RingCore(od, id, h),
+                  lambda od, id, h: f"ring {_mm(od)} × {_mm(id)} × {_mm(h)} mm"),
+    "sleeve": _Kind(("od", "id", "height"), lambda od, id, h: sleeve(od, id, h),
+                    lambda od, id, h: f"sleeve {_mm(od)} × {_mm(id)} × {_mm(h)} mm"),
+    "two-hole": _Kind(("width", "thickness", "length", "hole", "hole_spacing"), TwoHoleCore,
+                      lambda w, t, L, d, s: f"two-hole {_mm(w)} × {_mm(t)} × {_mm(L)} mm, holes {_mm(d)} at {_mm(s)} mm"),
+}
 
 
 @dataclass(frozen=True, eq=False)
-class RingSizes:
-    """A table of ring and sleeve sizes, by dimensions only.
+class CoreSizes:
+    """A table of core sizes: one core object (a single piece) per row.
 
     Attributes
     ----------
     kind : tuple of str
-        ``"ring"`` or ``"sleeve"`` per row.
-    od, id, height : numpy.ndarray
-        Outside and inside diameter and the height (length, for a sleeve) of one piece [m].
+        The row's kind (``ring``, ``sleeve``, ``two-hole``), for display.
+    cores : tuple of Core
+        One piece per row; the search stacks them with ``core.stacked(k)``.
+    labels : tuple of str
+        Short dimension text per row, e.g. ``ring 61 × 35.55 × 12.7 mm``.
     source : tuple of str
         Where each row came from (``built-in`` or the file name), for messages.
     """
 
     kind: tuple[str, ...]
-    od: np.ndarray
-    id: np.ndarray
-    height: np.ndarray
+    cores: tuple[Core, ...]
+    labels: tuple[str, ...]
     source: tuple[str, ...]
 
     def __post_init__(self) -> None:
-        for name in ("od", "id", "height"):
-            a = np.asarray(getattr(self, name), float).reshape(-1)
-            a.setflags(write=False)
-            object.__setattr__(self, name, a)
-        n = len(self.kind)
-        if not (self.od.size == self.id.size == self.height.size == len(self.source) == n):
-            raise DimensionError("ring size table: columns of different lengths")
+        for name in ("kind", "cores", "labels", "source"):
+            object.__setattr__(self, name, tuple(getattr(self, name)))
+        if not (len(self.cores) == len(self.labels) == len(self.source) == len(self.kind)):
+            raise DimensionError("core size table: columns of different lengths")
 
     def __len__(self) -> int:
         return len(self.kind)
 
     def label(self, i: int) -> str:
         """E.g. ``ring 61 × 35.55 × 12.7 mm``."""
-        return f"{self.kind[i]} {self.od[i] * 1e3:.4g} × {self.id[i] * 1e3:.4g} × {self.height[i] * 1e3:.4g} mm"
+        return self.labels[i]
 
-    def __add__(self, other: "RingSizes") -> "RingSizes":
-        return RingSizes(
-            self.kind + other.kind,
-            np.concatenate([self.od, other.od]),
-            np.concatenate([self.id, other.id]),
-            np.concatenate([self.height, other.height]),
-            self.source + other.source,
-        )
+    @property
+    def window_diameters(self) -> np.ndarray:
+        """Hole diameter of each row's core [m]."""
+        return np.array([c.window_diameter for c in self.cores], float)
+
+    def subset(self, rows: Sequence[int]) -> "CoreSizes":
+        """The rows ``rows``, in that order."""
+        return CoreSizes(*(tuple(getattr(self, n)[i] for i in rows) for n in ("kind", "cores", "labels", "source")))
+
+    def __add__(self, other: "CoreSizes") -> "CoreSizes":
+        return CoreSizes(self.kind + other.kind, self.cores + other.cores, self.labels + other.labels,
+                         self.source + other.source)
 
 
-def _parse_ring_sizes(text: str, where: str, source: str | None = None) -> RingSizes:
-    return _ring_sizes(parse_table(text, where, DimensionError), where, source)
+def RingSizes(kind, od, id, height, source) -> CoreSizes:  # noqa: N802 - the former class name, kept
+    """A :class:`CoreSizes` of rings and sleeves from columns of dimensions [m]."""
+    rows = [(k, (float(a), float(b), float(c))) for k, a, b, c in zip(kind, od, id, height)]
+    return CoreSizes(tuple(kind), tuple(KINDS[k].build(*v) for k, v in rows),
+                     tuple(KINDS[k].label(*v) for k, v in rows), tuple(source))
 
 
-def _ring_sizes(table: Table, where: str, source: str | None = None) -> RingSizes:
+def _parse_ring_sizes(text: str, where: str, source: str | None = None) -> CoreSizes:
+    return _core_sizes(parse_table(text, where, DimensionError), where, source)
+
+
+def _header_help() -> str:
+    return " or ".join("kind," + ",".join(f"{c}_mm" for c in k.columns) for n, k in KINDS.items() if n != "sleeve")
+
+
+def _core_sizes(table: Table, where: str, source: str | None = None) -> CoreSizes:
     header = table.header
-    units = {"od_mm": 1e-3, "id_mm": 1e-3, "height_mm": 1e-3, "od_m": 1.0, "id_m": 1.0, "height_m": 1.0}
-    cols = {}
-    for key in ("od", "id", "height"):
-        found = [h for h in header if h in (f"{key}_mm", f"{key}_m")]
-        if not found:
-            raise DimensionError(
-                f"{where}: header must name kind,od_mm,id_mm,height_mm (or *_m for metres), got {table.header_text}"
-            )
-        cols[key] = (header.index(found[0]), units[found[0]])
+    cols: dict[str, tuple[int, float]] = {}
+    for i, h in enumerate(header):
+        for suffix, scale in (("_mm", 1e-3), ("_m", 1.0)):
+            if h.endswith(suffix) and h[: -len(suffix)] not in cols:
+                cols[h[: -len(suffix)]] = (i, scale)
+                break
+    if not any(all(c in cols for c in k.columns) for k in KINDS.values()):
+        raise DimensionError(f"{where}: header must name {_header_help()} (or *_m for metres), got {table.header_text}")
     k_kind = header.index("kind") if "kind" in header else None
-    kinds, od, idd, h = [], [], [], []
+    kinds, cores, labels = [], [], []
     for lineno, row in table.rows:
-        try:
-            vals = {k: float(row[i]) * s for k, (i, s) in cols.items()}
-        except (ValueError, IndexError):
-            raise DimensionError(f"{where} line {lineno}: expected numbers for od, id and height: {','.join(row)}") from None
         kind = (row[k_kind].lower() if k_kind is not None and k_kind < len(row) and row[k_kind] else "ring")
-        if kind not in ("ring", "sleeve"):
-            raise DimensionError(f"{where} line {lineno}: kind must be ring or sleeve, got {kind!r}")
-        if not all(math.isfinite(v) and v > 0 for v in vals.values()):
+        if kind not in KINDS:
+            raise DimensionError(f"{where} line {lineno}: kind must be {', '.join(KINDS)}, got {kind!r}")
+        spec = KINDS[kind]
+        absent = [c for c in spec.columns if c not in cols]
+        if absent:
+            raise DimensionError(f"{where} line {lineno}: a {kind} row needs the column(s) "
+                                 f"{', '.join(c + '_mm' for c in absent)} in the header")
+        try:
+            vals = [float(row[cols[c][0]]) * cols[c][1] for c in spec.columns]
+        except (ValueError, IndexError):
+            raise DimensionError(f"{where} line {lineno}: expected numbers for {', '.join(spec.columns)}: {','.join(row)}") from None
+        if not all(math.isfinite(v) and v > 0 for v in vals):
             raise DimensionError(f"{where} line {lineno}: dimensions must be positive")
-        if vals["id"] >= vals["od"]:
-            raise DimensionError(f"{where} line {lineno}: ID must be smaller than OD")
+        try:
+            core = spec.build(*vals)
+        except DimensionError as exc:
+            raise DimensionError(f"{where} line {lineno}: {exc}") from None
         kinds.append(kind)
-        od.append(vals["od"])
-        idd.append(vals["id"])
-        h.append(vals["height"])
+        cores.append(core)
+        labels.append(spec.label(*vals))
     if not kinds:
         raise DimensionError(f"{where}: the header is there but no sizes follow")
-    return RingSizes(tuple(kinds), np.array(od), np.array(idd), np.array(h), (source or where,) * len(kinds))
+    return CoreSizes(tuple(kinds), tuple(cores), tuple(labels), (source or where,) * len(kinds))
 
 
 @lru_cache(maxsize=1)
-def builtin_ring_sizes() -> RingSizes:
+def builtin_ring_sizes() -> CoreSizes:
     """The built-in generic ring and sleeve sizes (``cmcheck/design/data/ring_sizes.csv``)."""
     text = resources.files("cmcheck").joinpath("design/data/ring_sizes.csv").read_text(encoding="utf-8")
     return _parse_ring_sizes(text, "built-in ring sizes", source="built-in")
 
 
-def load_ring_sizes(path) -> RingSizes:
-    """Read a user table of sizes: header ``kind,od_mm,id_mm,height_mm`` (or ``*_m``), ``#`` comments.
+def load_ring_sizes(path) -> CoreSizes:
+    """Read a user table of sizes, ``#`` comments allowed; kinds and columns as the module says.
+
+    Header ``kind,od_mm,id_mm,height_mm`` for rings and sleeves,
+    ``kind,width_mm,thickness_mm,length_mm,hole_mm,hole_spacing_mm`` for two-hole cores (both
+    sets for a mixed file; ``*_m`` for metres).
 
     Parameters
     ----------
     path : str or os.PathLike
-        The CSV file; ``kind`` (ring or sleeve) may be left out, meaning ring.
+        The CSV file; ``kind`` (ring, sleeve or two-hole) may be left out, meaning ring.
 
     Raises
     ------
@@ -127,33 +184,4 @@ def load_ring_sizes(path) -> RingSizes:
         Naming the file and line when the table is missing, unreadable or impossible.
     """
     where = f"--sizes {path}"
-    return _ring_sizes(read_table(path, where, DimensionError), where)
-
-
-def bend_radius(core_od, core_id, height, conductor_od):
-    """Bend radius of a conductor wound round a ring's section, at its tightest [m].
-
-    A stiff cable does not follow the section's corners: it wraps 180° round the narrower side
-    of the section (radial width (OD − ID)/2 or axial height), so its centre line bends with
-    radius ≈ (narrower side + conductor OD)/2.
-
-    Parameters
-    ----------
-    core_od, core_id, height : array_like
-        Ring or stack outside diameter, inside diameter and total height [m].
-    conductor_od : array_like
-        Cable outside diameter [m].
-
-    Returns
-    -------
-    numpy.ndarray or float
-        Bend radius of the cable's centre line [m].
-
-    References
-    ----------
-    Elementary geometry of a conductor wrapped round a rectangle; the simplification (a half
-    circle round the narrow side) is common practice, no published source.
-    """
-    w = (np.asarray(core_od, float) - np.asarray(core_id, float)) / 2.0
-    r = (np.minimum(w, np.asarray(height, float)) + np.asarray(conductor_od, float)) / 2.0
-    return float(r) if np.ndim(r) == 0 else r
+    return _core_sizes(read_table(path, where, DimensionError), where)

@@ -215,7 +215,7 @@ def diagnose_heat(spec: SizeSpec, closest: SizedDesign, meeting: int, f, mus, r_
 
 def diagnose_nothing_fits(spec: SizeSpec) -> Diagnosis:
     d = spec.conductor.outer_diameter
-    largest = float(np.max(spec.sizes.id))
+    largest = float(np.nanmax(spec.sizes.window_diameters))
     return Diagnosis(
         f"the {d * 1e3:.3g} mm conductor passes through none of the {len(spec.sizes)} core sizes "
         f"(largest hole {largest * 1e3:.3g} mm)",

@@ -1,11 +1,13 @@
-"""Sizing: search material × ring size × stacked cores × turns for chokes that meet a target.
+"""Sizing: search material × core size × stacked cores × turns for chokes that meet a target.
 
 Every candidate is evaluated with the model of :func:`cmcheck.model.choke.predict` — the same L0,
 µ(f), conductor resistance and stray-capacitance estimate, through
 :func:`cmcheck.model.choke.choke_impedance` — but all at once, as arrays shaped
 (candidates, frequencies), one chunk at a time to bound memory. µ(f) is evaluated once per
 material and broadcast; geometry (core factor, turn length, Cp) once per core-and-turns
-combination and shared by all materials.
+combination and shared by all materials. Cores of any shape come from the catalogue as objects
+of the :class:`cmcheck.model.cores.Core` contract: their scalar quantities are read once per
+stack, the rest is arrays.
 
 The criterion is the minimum resistance (or |Z|) over the band's grid, edges included. Passing
 designs are ranked by a stated cost — total core volume, then turns, then (larger) margin —
@@ -24,15 +26,18 @@ from typing import Callable, Sequence
 import numpy as np
 
 from ..model.choke import ChokeDesign, Prediction, air_core_inductance, choke_impedance, predict
-from ..model.cores import RingCore, effective_parameters, ring_core_factors, ring_surface_area
+from ..model.capacitance import segment_arrays, stray_capacitance_segments
+from ..model.conductors import Conductor
+from ..model.cores import Core
 from ..errors import DesignError
 from ..model.materials import Material
-from .catalogue import RingSizes, bend_radius, builtin_ring_sizes, load_ring_sizes
+from .catalogue import CoreSizes, RingSizes, bend_radius, builtin_ring_sizes, load_ring_sizes
 from .heat import DEFAULT_MAX_RISE_K, Drive, heat_check
 from ..units import Band
-from ..model.winding import Cable, Winding, Wire, max_turns_single_layer, stray_capacitance, turn_length
+from ..model.winding import Winding, max_turns_single_layer
 
 __all__ = [
+    "CoreSizes",
     "DEFAULT_BEND_RATIO",
     "DEFAULT_MAX_CORES",
     "DEFAULT_TARGET_OHM",
@@ -80,10 +85,11 @@ class SizeSpec:
     ----------
     band : Band
         Frequencies [Hz]; with several ranges the criterion holds in all of them.
-    conductor : Wire or Cable
-        What is wound.
+    conductor : Conductor
+        What is wound (Wire, Cable...).
     materials : sequence of Material
-    sizes : RingSizes
+    sizes : CoreSizes
+        One core object per row (:mod:`cmcheck.design.catalogue`).
     target_ohm : float
         Required minimum over the band [Ω] of R (``criterion="resistance"``) or |Z|.
     criterion : {"resistance", "impedance"}
@@ -93,7 +99,7 @@ class SizeSpec:
         Cap on turns besides what fits in one layer.
     min_bend_radius : float, optional
         Smallest allowed bend radius of a cable for two or more turns [m]; default
-        ``DEFAULT_BEND_RATIO`` × cable OD; wire is not limited unless given.
+        ``DEFAULT_BEND_RATIO`` × OD for a stiff conductor (cable); wire is not limited unless given.
     cp_factor : float
         Multiplies the single-layer Cp estimate (≥ 1 for a pessimistic self-resonance).
     points : int
@@ -109,9 +115,9 @@ class SizeSpec:
     """
 
     band: Band
-    conductor: Wire | Cable
+    conductor: Conductor
     materials: Sequence[Material]
-    sizes: RingSizes
+    sizes: CoreSizes
     target_ohm: float = DEFAULT_TARGET_OHM
     criterion: str = "resistance"
     max_cores: int = DEFAULT_MAX_CORES
@@ -159,7 +165,7 @@ class SizeSpec:
         """The bend radius limit in force [m] (0: none)."""
         if self.min_bend_radius is not None:
             return self.min_bend_radius
-        return DEFAULT_BEND_RATIO * self.conductor.od if isinstance(self.conductor, Cable) else 0.0
+        return DEFAULT_BEND_RATIO * self.conductor.outer_diameter if self.conductor.stiff else 0.0
 
     @property
     def metric_name(self) -> str:
@@ -188,8 +194,8 @@ class SizedDesign:
     heat: dict | None = None
 
     @property
-    def core(self) -> RingCore:
-        return self.design.core  # type: ignore[return-value]
+    def core(self) -> Core:
+        return self.design.core
 
     @property
     def self_resonance_hz(self) -> float | None:
@@ -331,12 +337,17 @@ def _geometry(spec: SizeSpec, *, turns_factor: float = 1.0, limits: bool = True)
     sizes = spec.sizes
     cond = spec.conductor
     d_out = cond.outer_diameter
-    s_idx, stack = np.meshgrid(np.arange(len(sizes)), np.arange(1, spec.max_cores + 1), indexing="ij")
-    s_idx, stack = s_idx.ravel(), stack.ravel()
-    od, idd = sizes.od[s_idx], sizes.id[s_idx]
-    h_total = sizes.height[s_idx] * stack
-    n_fit = np.atleast_1d(max_turns_single_layer(idd, d_out))
-    bend = np.atleast_1d(bend_radius(od, idd, h_total, d_out))
+    pieces = [(i, k) for i in range(len(sizes)) for k in range(1, spec.max_cores + 1)]
+    s_idx = np.array([i for i, _ in pieces], int)
+    stack = np.array([k for _, k in pieces], int)
+    cores = [sizes.cores[i].stacked(k) for i, k in pieces]
+    # The few scalar quantities of each stack through the core contract (a few hundred stacks);
+    # None (a quantity a shape does not know) becomes NaN.
+    scalars = np.array([[c.window_diameter, c.bend_radius(d_out), c.c1, c.ae, c.surface_area, c.volume,
+                         c.turn_length(d_out)] for c in cores], dtype=float).reshape(len(cores), 7)
+    window, bend, c1, ae, area, volume, mlt = scalars.T
+    known = np.isfinite(window)
+    n_fit = np.where(known, np.atleast_1d(max_turns_single_layer(np.where(known, window, 1.0), d_out)), 0)
     limit = spec.bend_limit
     bent_too_far = bend + 1e-12 < limit
     n_max = np.floor(n_fit * turns_factor).astype(int)
@@ -359,21 +370,23 @@ def _geometry(spec: SizeSpec, *, turns_factor: float = 1.0, limits: bool = True)
     base = np.repeat(np.flatnonzero(keep), counts)
     starts = np.repeat(np.cumsum(counts) - counts, counts)
     turns = (np.arange(base.size) - starts + 1).astype(int)
-    s_idx, stack, n_fit = s_idx[base], stack[base], n_fit[base]
-    od, idd, h_total, bend = od[base], idd[base], h_total[base], bend[base]
-    c1, c2 = (np.atleast_1d(c) for c in ring_core_factors(od, idd, h_total))
-    cp = np.atleast_1d(
-        stray_capacitance(od, idd, h_total, d_out, cond.conducting_diameter, turns, cond.effective_eps_r)
-    )
+    # Turn geometry of every kept stack as padded segment arrays (a shape without one: no
+    # segments, so no Cp, as ChokeDesign.cp gives 0 for it).
+    geoms = [cores[i].turn_geometry(d_out) for i in np.flatnonzero(keep)]
+    seg = segment_arrays([g for g in geoms if g is not None])
+    lens, p0, p1 = (np.zeros((len(geoms), seg[0].shape[1])) for _ in range(3))
+    has = np.array([g is not None for g in geoms], bool)
+    lens[has], p0[has], p1[has] = seg
+    row = np.repeat(np.arange(len(geoms)), counts)
+    cp = np.atleast_1d(stray_capacitance_segments(lens[row], p0[row], p1[row], d_out, cond.conducting_diameter, turns,
+                                                  cond.effective_eps_r))
+    s_idx, stack, n_fit, bend = s_idx[base], stack[base], n_fit[base], bend[base]
     geo = _Geometry(
         size_idx=s_idx, stack=stack, turns=turns, n_fit=n_fit,
-        l0=np.atleast_1d(air_core_inductance(c1, turns)),
+        l0=np.atleast_1d(air_core_inductance(c1[base], turns)),
         cp=cp * spec.cp_factor,
-        length=turns * np.atleast_1d(turn_length(od, idd, h_total, d_out)),
-        ae=np.atleast_1d(effective_parameters(c1, c2)[1]),
-        area=np.atleast_1d(ring_surface_area(od, idd, h_total)),
-        volume=np.pi / 4.0 * (od**2 - idd**2) * h_total,
-        bend=bend,
+        length=turns * np.nan_to_num(mlt[base]),
+        ae=ae[base], area=area[base], volume=volume[base], bend=bend,
     )
     return geo, space
 
@@ -550,8 +563,7 @@ def _short_list(spec, geo, mat, g, r_min, r_hz, x_min, x_hz, margin, heat) -> tu
 
 
 def _design(spec: SizeSpec, geo: _Geometry, m: int, g: int) -> ChokeDesign:
-    s = int(geo.size_idx[g])
-    core = RingCore(float(spec.sizes.od[s]), float(spec.sizes.id[s]), float(spec.sizes.height[s]), int(geo.stack[g]))
+    core = spec.sizes.cores[int(geo.size_idx[g])].stacked(int(geo.stack[g]))
     # With the plain estimate, leave Cp to the model (as predict would); a scaled one is given.
     cp = None if spec.cp_factor == 1.0 else float(geo.cp[g])
     return ChokeDesign(core, spec.materials[m], Winding(int(geo.turns[g]), spec.conductor, cp))

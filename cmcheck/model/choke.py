@@ -13,12 +13,14 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .cores import FactorCore, RingCore
+from .capacitance import stray_capacitance
+from .cores import Core
 from ..curve import ImpedanceCurve, resistive_ranges, self_resonance
 from ..errors import CmcheckWarning
 from .materials import Material
 from ..units import Band
-from .winding import MU0, Cable, Winding, check_fit, stray_capacitance, turn_length
+from .conductors import MU0
+from .winding import Winding, check_fit
 
 __all__ = [
     "ChokeDesign",
@@ -132,15 +134,16 @@ class ChokeDesign:
 
     Parameters
     ----------
-    core : RingCore or FactorCore
+    core : Core
+        Any core shape (:class:`~cmcheck.model.cores.Core`): ring, factor-only, two-hole...
     material : Material
     winding : Winding
     turn_length : float, optional
-        Length of one turn [m]; computed for ring cores, needed for the conductor
-        resistance of a :class:`FactorCore` (left out when not given).
+        Length of one turn [m], overriding the core's own (needed for the conductor resistance
+        of a :class:`~cmcheck.model.cores.FactorCore` without ``turn_path``).
     """
 
-    core: RingCore | FactorCore
+    core: Core
     material: Material
     winding: Winding
     turn_length: float | None = None
@@ -155,9 +158,7 @@ class ChokeDesign:
         """Length of one turn [m]."""
         if self.turn_length is not None:
             return self.turn_length
-        if isinstance(self.core, RingCore):
-            return turn_length(self.core.od, self.core.id, self.core.total_height, self.winding.conductor.outer_diameter)
-        return None
+        return self.core.turn_length(self.winding.conductor.outer_diameter)
 
     @property
     def conductor_length(self) -> float | None:
@@ -168,7 +169,7 @@ class ChokeDesign:
     @property
     def max_turns(self) -> int | None:
         """Most turns that fit in one layer, when the window is known."""
-        d = getattr(self.core, "window_diameter", None)
+        d = self.core.window_diameter
         return None if d is None else check_fit(d, self.winding)
 
     @property
@@ -176,20 +177,19 @@ class ChokeDesign:
         """Stray capacitance used [F]: the given one, else the single-layer estimate."""
         if self.winding.cp is not None:
             return self.winding.cp
-        if not isinstance(self.core, RingCore):
-            return 0.0  # no geometry to estimate from; the caller is told in the summary
         c = self.winding.conductor
-        return stray_capacitance(
-            self.core.od, self.core.id, self.core.total_height, c.outer_diameter, c.conducting_diameter,
-            self.winding.turns, c.effective_eps_r,
-        )
+        geometry = self.core.turn_geometry(c.outer_diameter)
+        if geometry is None:
+            return 0.0  # no geometry to estimate from; predict() warns, naming what is missing
+        return stray_capacitance(geometry, c.outer_diameter, c.conducting_diameter, self.winding.turns,
+                                 c.effective_eps_r)
 
     @property
     def cp_source(self) -> str:
         """How Cp was obtained: ``given``, ``estimated`` or ``none``."""
         if self.winding.cp is not None:
             return "given"
-        return "estimated" if isinstance(self.core, RingCore) else "none"
+        return "none" if self.core.turn_geometry(self.winding.conductor.outer_diameter) is None else "estimated"
 
     def conductor_resistance(self, frequency_hz) -> np.ndarray:
         """AC resistance of the conductor [Ω]; zero when its length is unknown."""
@@ -222,22 +222,12 @@ class ChokeDesign:
 
     def to_dict(self) -> dict:
         """JSON-ready description of the design (SI units)."""
-        core = self.core
         d: dict = {"material": self.material.name, "turns": self.winding.turns}
-        if isinstance(core, RingCore):
-            d.update(od_m=core.od, id_m=core.id, height_m=core.height, cores=core.stack,
-                     le_m=core.le, ae_m2=core.ae, ve_m3=core.ve)
-        else:
-            d.update(core_factor_per_m=core.c1, window_diameter_m=core.window_diameter)
-        cond = self.winding.conductor
-        if isinstance(cond, Cable):
-            d.update(cable_od_m=cond.od)
-        else:
-            d.update(wire_diameter_m=cond.diameter, insulation_m=cond.insulation)
+        d.update(self.core.to_dict())
+        d.update(self.winding.conductor.to_dict())
         d.update(
             cp_f=self.cp,
             cp_source=self.cp_source,
-            core_factor_per_m=core.c1,
             l0_h=self.l0,
             low_frequency_inductance_h=self.low_frequency_inductance(),
             turn_length_m=self.mean_turn_length,
@@ -330,8 +320,8 @@ def predict(design: ChokeDesign, band: Band, points: int = 201) -> Prediction:
     max_turns = design.max_turns
     if design.cp_source == "none":
         warnings.warn(
-            "no stray-capacitance estimate for a core given only by its factor; the model has no "
-            "self-resonance unless --cp (Winding.cp) is given",
+            f"no stray-capacitance estimate: the core lacks {' and '.join(design.core.missing) or 'a turn geometry'}; "
+            "the model has no self-resonance unless Winding.cp is given",
             CmcheckWarning,
             stacklevel=2,
         )
