@@ -24,7 +24,6 @@ import timeit
 import numpy as np
 
 from cmcheck.model.choke import ChokeDesign, predict
-from cmcheck.model.cores import RingCore
 from cmcheck.model.materials import builtin_materials
 from cmcheck.design.catalogue import builtin_ring_sizes
 from cmcheck.design.search import SizeSpec, _geometry, size
@@ -66,8 +65,7 @@ def main() -> None:
     designs = []
     for c in sample:
         m, g = divmod(int(c), geo.turns.size)
-        s = int(geo.size_idx[g])
-        core = RingCore(float(spec.sizes.od[s]), float(spec.sizes.id[s]), float(spec.sizes.height[s]), int(geo.stack[g]))
+        core = spec.sizes.cores[int(geo.size_idx[g])].stacked(int(geo.stack[g]))
         designs.append(ChokeDesign(core, mats[m], Winding(int(geo.turns[g]), spec.conductor)))
     t0 = time.perf_counter()
     for d in designs:

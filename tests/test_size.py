@@ -14,7 +14,7 @@ import cmcheck.design.search as size_mod
 from cmcheck.model.choke import ChokeDesign, predict
 from cmcheck.model.cores import RingCore
 from cmcheck.model.materials import builtin_materials, get_material
-from cmcheck.design.catalogue import RingSizes, bend_radius, builtin_ring_sizes, load_ring_sizes
+from cmcheck.design.catalogue import bend_radius, builtin_ring_sizes, load_ring_sizes
 from cmcheck.design.search import DEFAULT_BEND_RATIO, SizeSpec, size
 from cmcheck.design.heat import Drive, dissipation_from_voltage, temperature_rise
 from cmcheck.units import parse_band
@@ -83,7 +83,8 @@ def _brute_force(spec):
     for mat in spec.materials:
         for i in range(len(spec.sizes)):
             for k in range(1, spec.max_cores + 1):
-                od, idd, h = spec.sizes.od[i], spec.sizes.id[i], spec.sizes.height[i]
+                c = spec.sizes.cores[i]
+                od, idd, h = c.od, c.id, c.height
                 n_fit = max_turns_single_layer(idd, d_out)
                 if bend_radius(od, idd, h * k, d_out) < spec.bend_limit:
                     n_fit = min(n_fit, 1)
@@ -99,9 +100,8 @@ def test_search_finds_exactly_what_brute_force_finds():
     # The vectorised search must use predict's model: on a small space it counts the same
     # passing candidates as evaluating each design alone, and the cheapest is the same.
     sizes = builtin_ring_sizes()
-    keep = [i for i in range(len(sizes)) if sizes.od[i] >= 35e-3]
-    small = RingSizes(tuple(sizes.kind[i] for i in keep), sizes.od[keep], sizes.id[keep], sizes.height[keep],
-                      tuple(sizes.source[i] for i in keep))
+    keep = [i for i in range(len(sizes)) if sizes.cores[i].od >= 35e-3]
+    small = sizes.subset(keep)
     spec = SizeSpec(parse_band("1.8-30MHz"), Cable(5e-3), [MATS["mnzn-1500"], MATS["nizn-800"]], small,
                     target_ohm=800.0, max_cores=2)
     res = size(spec)
@@ -168,8 +168,9 @@ def test_builtin_ring_sizes_are_generic_dimensions():
     t = builtin_ring_sizes()
     assert set(t.kind) == {"ring", "sleeve"}
     rings = np.array([k == "ring" for k in t.kind])
-    assert 9e-3 <= t.od[rings].min() <= 13e-3 and 55e-3 <= t.od[rings].max() <= 66e-3
-    assert np.all(t.id < t.od) and np.all(t.height > 0)
+    od, idd, h = (np.array([getattr(c, n) for c in t.cores]) for n in ("od", "id", "height"))
+    assert 9e-3 <= od[rings].min() <= 13e-3 and 55e-3 <= od[rings].max() <= 66e-3
+    assert np.all(idd < od) and np.all(h > 0)
     from importlib import resources
 
     text = resources.files("cmcheck").joinpath("design/data/ring_sizes.csv").read_text()

@@ -18,9 +18,9 @@ from cmcheck.model.winding import (
     round_wire_resistance,
     skin_depth,
     stray_capacitance,
-    turn_length,
     turn_to_turn_capacitance,
 )
+from cmcheck.model.cores import RingCore
 
 
 def test_skin_depth_copper():
@@ -53,7 +53,7 @@ def test_max_turns_geometry():
 
 def test_turn_length_rectangle():
     # Geometry: centre line around a w × h rectangle with corners rounded by d/2: 2(w+h) + πd.
-    assert turn_length(61e-3, 35.6e-3, 12.7e-3, 5e-3) == pytest.approx(2 * (12.7e-3 + 12.7e-3) + math.pi * 5e-3)
+    assert RingCore(61e-3, 35.6e-3, 12.7e-3).turn_length(5e-3) == pytest.approx(2 * (12.7e-3 + 12.7e-3) + math.pi * 5e-3)
 
 
 def test_fit_errors_and_warnings():
@@ -87,7 +87,7 @@ def test_two_wire_capacitance_reference():
     idd = 40e-3
     n = 20
     s = math.pi * (idd - d) / n
-    c = turn_to_turn_capacitance(idd + 1e-9, idd, 10e-3, d, d, n, 1.0)
+    c = turn_to_turn_capacitance(RingCore(idd + 1e-9, idd, 10e-3).turn_geometry(d), d, d, n, 1.0)
     s_out = math.pi * (idd + 1e-9 + d) / n
     expected = 10e-3 * math.pi * eps0 * (1 / math.acosh(s / d) + 1 / math.acosh(s_out / d))
     assert c == pytest.approx(expected, rel=1e-6)
@@ -96,7 +96,7 @@ def test_two_wire_capacitance_reference():
 def test_stray_capacitance_limits():
     # Massarini & Kazimierczuk, IEEE TPEL 12(4) 1997: Cs → (1+√3)/2 · Ctt for many turns;
     # one turn has no turn-to-turn capacitance; two turns are one Ctt.
-    args = (61e-3, 35.6e-3, 12.7e-3, 5e-3, 3.8e-3)
+    args = (RingCore(61e-3, 35.6e-3, 12.7e-3).turn_geometry(5e-3), 5e-3, 3.8e-3)
     ctt = turn_to_turn_capacitance(*args, 12, 2.0)
     assert stray_capacitance(*args, 12, 2.0) == pytest.approx((1 + math.sqrt(3)) / 2 * ctt)
     assert stray_capacitance(*args, 1, 2.0) == 0.0
@@ -107,7 +107,7 @@ def test_stray_capacitance_limits():
 def test_capacitance_grows_as_turns_crowd(n):
     # Closer turns (more of them) can only raise the per-pair capacitance (two-wire formula is
     # monotonic in spacing; Ramo et al. Table 5.11a).
-    args = (61e-3, 35.6e-3, 12.7e-3, 2e-3, 1.6e-3)
+    args = (RingCore(61e-3, 35.6e-3, 12.7e-3).turn_geometry(2e-3), 2e-3, 1.6e-3)
     assert turn_to_turn_capacitance(*args, n + 1, 2.0) >= turn_to_turn_capacitance(*args, n, 2.0)
 
 
