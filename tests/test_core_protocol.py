@@ -70,13 +70,18 @@ def test_every_conductor_keeps_the_contract(conductor):
     json.dumps(conductor.to_dict())
 
 
-def test_two_hole_equals_a_stack_of_two_equivalent_rings():
+@pytest.mark.parametrize("w, t, s, od_eq", [
+    (W, T, S, 6e-3),              # the spacing limits the circle round a hole
+    (20e-3, 5e-3, 9e-3, 5e-3),    # the thickness does
+    (10e-3, 8e-3, 6e-3, 4e-3),    # the outer wall (width − spacing) does
+])
+def test_two_hole_equals_a_stack_of_two_equivalent_rings(w, t, s, od_eq):
     # The stated approximation, rebuilt here: each hole acts as a ring of ID = hole and OD = the
-    # largest circle round the hole inside its half of the block; a turn links both, so the core
-    # is a stack of two such rings (common practice, no published source).
-    od_eq = min(S, T, W - S)
+    # largest circle round the hole inside its half of the block (read off each sketch above);
+    # a turn links both, so the core is a stack of two such rings (common practice, no
+    # published source).
     rings = RingCore(od_eq, D, L, stack=2)
-    core = TwoHoleCore(W, T, L, D, S)
+    core = TwoHoleCore(w, t, L, D, s)
     assert core.c1 == pytest.approx(rings.c1, rel=1e-12)
     assert core.ae == pytest.approx(rings.ae, rel=1e-12)
     assert core.le == pytest.approx(rings.le, rel=1e-12)
@@ -232,3 +237,34 @@ def test_users_of_cores_do_not_ask_for_the_shape():
         assert not re.search(r"isinstance\(\s*[\w.]*(core|conductor|cond)\b", text), rel
         assert not re.search(r"type\(\s*[\w.]*(core|conductor|cond)\b", text), rel
         assert not re.search(r"kind\s*[!=]=", text), rel
+
+
+def test_search_with_two_hole_cores_matches_predict_and_the_heat_formula():
+    # The vectorised search reads two-hole cores through the contract only; each listed design
+    # must reproduce predict's minimum R, and its heat figures the surface-dissipation rule
+    # ΔT = 450·(P/A[cm²])^0.826 (McLyman, 3rd ed., ch. 6, from memory) with P = V²·Re(1/Z)
+    # (Joule) at the worst grid frequency and A = the block's outside plus hole walls less the
+    # openings (elementary geometry).
+    from cmcheck.design.catalogue import CoreSizes
+    from cmcheck.design.heat import Drive
+    from cmcheck.design.search import SizeSpec, size
+
+    blocks = [TwoHoleCore(W, T, L, D, S), TwoHoleCore(2 * W, 2 * T, 2 * L, 2 * D, 2 * S)]
+    sizes = CoreSizes(("two-hole",) * 2, tuple(blocks), ("small", "large"), ("test",) * 2)
+    band = Band.single(3.5e6, 30e6)
+    v = 5.0
+    spec = SizeSpec(band, Wire(0.5e-3), [NIZN], sizes, target_ohm=300.0, max_cores=2,
+                    drive=Drive(5.0, cm_voltage_v=v), keep_hot=True)
+    res = size(spec)
+    assert res.designs
+    f = band.grid(spec.points)
+    f = f[band.contains(f)]
+    for d in res.designs:
+        assert d.min_resistance_ohm == pytest.approx(d.prediction.summary["min_resistance_ohm"], rel=1e-9)
+        c = d.design.core
+        k = c.stack
+        area = 2 * (W * T - 2 * math.pi * D**2 / 4) + 2 * (W + T) * L * k + 2 * math.pi * D * L * k
+        area *= (c.width / W) ** 2
+        p = np.max(v**2 * (1 / d.design.impedance(f)).real)
+        assert d.heat["dissipation_w"] == pytest.approx(p, rel=1e-9)
+        assert d.heat["temperature_rise_k"] == pytest.approx(450 * (p / (area * 1e4)) ** 0.826, rel=1e-9)
