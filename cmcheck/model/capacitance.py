@@ -36,7 +36,8 @@ class TurnSegment:
     Attributes
     ----------
     length : float
-        Length of the stretch along the conductor [m].
+        Length of the stretch along the conductor [m]; stretches with the same spread profile
+        (a ring's two faces) may be given as one segment of their total length.
     spread_start, spread_end : float
         Length [m] of the line, across the turns and through the conductor centres, over which
         all N turns spread at either end of the stretch (π(ID − d) on a ring's inside wall):
@@ -155,11 +156,18 @@ def turn_to_turn_capacitance_segments(length, spread_start, spread_end, conducto
     eps = np.asarray(eps_r, float)[..., None]
     s0 = np.maximum(np.asarray(spread_start, float) / n, d_out)
     s1 = np.maximum(np.asarray(spread_end, float) / n, d_out)
-    # Spacing varies linearly along a segment: 8-point Gauss–Legendre (exact when constant).
-    x, wt = np.polynomial.legendre.leggauss(8)
-    t = (x + 1.0) / 2.0
-    s = s0[..., None] + (s1 - s0)[..., None] * t
-    c_per_len = np.sum(_two_wire_capacitance_per_length(s, d[..., None], eps[..., None]) * wt / 2.0, axis=-1)
+    s0, s1 = np.broadcast_arrays(s0, s1)
+    c_per_len = _two_wire_capacitance_per_length(s0, d, eps)
+    # Where the spacing varies along a segment, average C' over it: 8-point Gauss–Legendre,
+    # only for the segment columns that need it (the sizing search evaluates thousands).
+    vary = np.flatnonzero(np.any((s1 != s0).reshape(-1, s0.shape[-1]), axis=0)) if s0.size else []
+    if len(vary):
+        x, wt = np.polynomial.legendre.leggauss(8)
+        t = (x + 1.0) / 2.0
+        a, b = s0[..., vary], s1[..., vary]
+        sv = a[..., None] + (b - a)[..., None] * t
+        c_per_len[..., vary] = np.sum(_two_wire_capacitance_per_length(sv, d[..., None], eps[..., None]) * wt / 2.0,
+                                      axis=-1)
     c = np.sum(c_per_len * np.asarray(length, float), axis=-1)
     return float(c) if np.ndim(c) == 0 else c
 

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, replace
+from functools import cached_property
 from typing import Protocol, runtime_checkable
 
 import numpy as np
@@ -233,11 +234,11 @@ def ring_turn_geometry(od: float, id: float, height: float, conductor_od: float,
     p_in = math.pi * (id - conductor_od)
     p_out = math.pi * (od + conductor_od)
     w = (od - id) / 2.0
+    # The two faces have the same spread profile, so one segment of twice the width covers both.
     segments = (
         TurnSegment(height, p_in, p_in),
-        TurnSegment(w, p_in, p_out),
+        TurnSegment(2.0 * w, p_in, p_out),
         TurnSegment(height, p_out, p_out),
-        TurnSegment(w, p_out, p_in),
     )
     return TurnGeometry(segments, RingSection(od, id, height), rings)
 
@@ -299,30 +300,39 @@ class RingCore:
         """Height of the whole stack [m]."""
         return self.height * self.stack
 
+    @cached_property
+    def _factors(self) -> tuple[float, float]:
+        # Computed once per object: the sizing search reads several of these per stack.
+        return ring_core_factors(self.od, self.id, self.total_height)
+
+    @cached_property
+    def _effective(self) -> tuple[float, float, float]:
+        return effective_parameters(*self._factors)
+
     @property
     def c1(self) -> float:
         """Core factor Σl/A [1/m] (IEC 60205)."""
-        return ring_core_factors(self.od, self.id, self.total_height)[0]
+        return self._factors[0]
 
     @property
     def c2(self) -> float:
         """Core factor Σl/A² [1/m³] (IEC 60205)."""
-        return ring_core_factors(self.od, self.id, self.total_height)[1]
+        return self._factors[1]
 
     @property
     def le(self) -> float:
         """Effective path length [m]."""
-        return effective_parameters(self.c1, self.c2)[0]
+        return self._effective[0]
 
     @property
     def ae(self) -> float:
         """Effective area [m²]."""
-        return effective_parameters(self.c1, self.c2)[1]
+        return self._effective[1]
 
     @property
     def ve(self) -> float:
         """Effective volume [m³]."""
-        return effective_parameters(self.c1, self.c2)[2]
+        return self._effective[2]
 
     @property
     def window_diameter(self) -> float:

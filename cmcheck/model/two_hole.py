@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import cached_property
 
 from ..errors import DimensionError
 from .capacitance import RingSection, TurnGeometry, TurnSegment
@@ -114,6 +115,7 @@ class TwoHoleCore:
         return RingSection(two_hole_equivalent_od(self.width, self.thickness, self.spacing), self.hole,
                            self.total_length)
 
+    @cached_property
     def _factors(self) -> tuple[float, float]:
         r = self.equivalent_ring
         # Two rings linked by every turn: the same as one ring of twice the height.
@@ -122,22 +124,22 @@ class TwoHoleCore:
     @property
     def c1(self) -> float:
         """Core factor Σl/A [1/m] (class notes)."""
-        return self._factors()[0]
+        return self._factors[0]
 
     @property
     def le(self) -> float:
         """Effective path length [m]."""
-        return effective_parameters(*self._factors())[0]
+        return effective_parameters(*self._factors)[0]
 
     @property
     def ae(self) -> float:
         """Effective area [m²]."""
-        return effective_parameters(*self._factors())[1]
+        return effective_parameters(*self._factors)[1]
 
     @property
     def ve(self) -> float:
         """Effective volume [m³]."""
-        return effective_parameters(*self._factors())[2]
+        return effective_parameters(*self._factors)[2]
 
     @property
     def window_diameter(self) -> float:
@@ -173,9 +175,10 @@ class TwoHoleCore:
         """Two passes through a hole and two crossings of an end face (class notes)."""
         p = math.pi * (self.hole - conductor_od)
         web = self.spacing - self.hole
-        through = TurnSegment(self.total_length, p, p)
-        across = TurnSegment(web, p, p)
-        return TurnGeometry((through, across, through, across), self.equivalent_ring, rings=2)
+        # Both passes through a hole as one segment, both end-face crossings as another.
+        through = TurnSegment(2.0 * self.total_length, p, p)
+        across = TurnSegment(2.0 * web, p, p)
+        return TurnGeometry((through, across), self.equivalent_ring, rings=2)
 
     def bend_radius(self, conductor_od: float) -> float:
         """(narrower side of the web + d)/2 [m]: the conductor wraps the web, (spacing − hole)
