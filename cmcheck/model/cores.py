@@ -235,11 +235,7 @@ def ring_turn_geometry(od: float, id: float, height: float, conductor_od: float,
     p_out = math.pi * (od + conductor_od)
     w = (od - id) / 2.0
     # The two faces have the same spread profile, so one segment of twice the width covers both.
-    segments = (
-        TurnSegment(height, p_in, p_in),
-        TurnSegment(2.0 * w, p_in, p_out),
-        TurnSegment(height, p_out, p_out),
-    )
+    segments = (TurnSegment(height, p_in, p_in), TurnSegment(2.0 * w, p_in, p_out), TurnSegment(height, p_out, p_out))
     return TurnGeometry(segments, RingSection(od, id, height), rings)
 
 
@@ -301,8 +297,7 @@ class RingCore:
         return self.height * self.stack
 
     @cached_property
-    def _factors(self) -> tuple[float, float]:
-        # Computed once per object: the sizing search reads several of these per stack.
+    def _factors(self) -> tuple[float, float]:  # once per object: the search reads several per stack
         return ring_core_factors(self.od, self.id, self.total_height)
 
     @cached_property
