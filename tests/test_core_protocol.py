@@ -268,3 +268,52 @@ def test_search_with_two_hole_cores_matches_predict_and_the_heat_formula():
         p = np.max(v**2 * (1 / d.design.impedance(f)).real)
         assert d.heat["dissipation_w"] == pytest.approx(p, rel=1e-9)
         assert d.heat["temperature_rise_k"] == pytest.approx(450 * (p / (area * 1e4)) ** 0.826, rel=1e-9)
+
+
+@pytest.mark.parametrize("d", [0.3e-3, 1e-3])
+def test_two_hole_turn_follows_the_web(d):
+    # A turn lies on the web between the holes: a rectangle (spacing − hole) across and the
+    # length along. Its conductor's centre line is the outer parallel curve at d/2, whose length
+    # is measured here as the perimeter of the convex hull of circles round the rectangle's
+    # corners (scipy.spatial.ConvexHull; Steiner's formula P + 2πr says the same).
+    from scipy.spatial import ConvexHull
+
+    core = TwoHoleCore(W, T, L, D, S)
+    a = S - D
+    phi = np.linspace(0, 2 * np.pi, 2000, endpoint=False)
+    pts = np.concatenate([np.c_[x + d / 2 * np.cos(phi), z + d / 2 * np.sin(phi)]
+                          for x in (-a / 2, a / 2) for z in (0.0, L)])
+    assert core.turn_length(d) == pytest.approx(ConvexHull(pts).area, rel=1e-5)
+    # The stiff conductor wraps the web as it would a ring's section of the same two sides
+    # (radial width = spacing − hole, height = length): the ring's bend rule applies.
+    assert core.bend_radius(d) == pytest.approx(RingCore(D + 2 * a, D, L).bend_radius(d))
+    assert core.stacked(2).bend_radius(d) == pytest.approx(RingCore(D + 2 * a, D, 2 * L).bend_radius(d))
+
+
+def test_cable_bend_is_limited_by_default_and_wire_is_not():
+    # Default bend limit for a stiff conductor: DEFAULT_BEND_RATIO × OD (common practice, no
+    # published source, see cmcheck.design.search); solid wire follows any bend.
+    from cmcheck.design.catalogue import builtin_ring_sizes
+    from cmcheck.design.search import DEFAULT_BEND_RATIO, SizeSpec
+
+    band = Band.single(3.5e6, 30e6)
+    assert SizeSpec(band, Cable(5e-3), [NIZN], builtin_ring_sizes()).bend_limit == pytest.approx(DEFAULT_BEND_RATIO * 5e-3)
+    assert SizeSpec(band, Wire(1e-3), [NIZN], builtin_ring_sizes()).bend_limit == 0.0
+
+
+@pytest.mark.parametrize("n", [2, 6, 30])
+def test_two_hole_stray_capacitance_from_the_two_wire_formula(n):
+    # Stated geometry (TwoHoleCore notes): the N turns spread round each hole's wall, π(hole − d),
+    # along both passes and both end crossings, 2·(length + spacing − hole) of each turn; adjacent
+    # turns are a two-wire line C' = π ε0 εr / acosh(s/dc) (Ramo, Whinnery & Van Duzer, 3rd ed.,
+    # Table 5.11a), s never below the outside diameter; Cp = Ctt for two turns, (1 + √3)/2 · Ctt
+    # from three (Massarini & Kazimierczuk 1997).
+    wire = Wire(0.4e-3, 0.03e-3)
+    d, dc, eps = wire.outer_diameter, wire.conducting_diameter, wire.effective_eps_r
+    s = max(math.pi * (D - d) / n, d)
+    ctt = 2 * (L + S - D) * math.pi * 8.8541878128e-12 * eps / math.acosh(max(s / dc, 1 + 1e-6))
+    cp = ctt if n == 2 else (1 + math.sqrt(3)) / 2 * ctt
+    design = ChokeDesign(TwoHoleCore(W, T, L, D, S), NIZN, Winding(n, wire))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", CmcheckWarning)  # 30 turns need more than one layer
+        assert design.cp == pytest.approx(cp, rel=1e-9)
