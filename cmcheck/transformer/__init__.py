@@ -1,0 +1,1 @@
+"""Transmission-line and flux-coupled transformers (baluns, ununs) as batched nodal circuits."""
