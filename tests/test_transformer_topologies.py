@@ -220,3 +220,32 @@ def test_test_resistor_and_touchstone_loads(tmp_path):
     assert mid[0].real == pytest.approx(ref_mid.real) and mid[0].imag == pytest.approx(ref_mid.imag)
     with pytest.raises(TransformerError, match="covers"):
         ld.impedance([20e6])
+
+
+def _y_to_s(y, z0=50.0):
+    eye = np.eye(y.shape[1])[None]
+    return np.linalg.solve(eye + z0 * y, eye - z0 * y)
+
+
+def test_wound_ruthroff_equals_scikit_rf_circuit():
+    # scikit-rf's Circuit connects the element (as the 4-port of its terminals to ground) to a
+    # port, ground and the load: an independent connection algebra for a lossy wound line
+    # with finite choking.
+    import skrf.circuit
+    import skrf.network
+
+    from cmcheck.transformer.elements import pair_on_core_y
+
+    w = LineWinding(RingCore(35.6e-3, 23e-3, 12.7e-3), get_material("nizn-800"), 8, Wire(awg_diameter(18), 0.035e-3, 3.5))
+    f = np.linspace(1e6, 30e6, 7)
+    freq = skrf.Frequency.from_f(f, unit="Hz")
+    zc, gl = w.constants(f)
+    el = skrf.network.Network(frequency=freq, s=_y_to_s(pair_on_core_y(zc, gl, w.z_winding(f))), z0=50, name="line")
+    rl = skrf.network.Network(frequency=freq, s=np.full((f.size, 1, 1), 150 / 250 + 0j), z0=50, name="rl")
+    port = skrf.circuit.Circuit.Port(freq, "p1", z0=50)
+    gnd = skrf.circuit.Circuit.Ground(freq, "gnd", z0=50)
+    cnx = [[(port, 0), (el, 0), (el, 3)], [(el, 1), (gnd, 0)], [(el, 2), (rl, 0)]]
+    ref = skrf.circuit.Circuit(cnx).network.z[:, 0, 0]
+    got = analyse(TOPOLOGIES["ruthroff-4:1-unun"], f, w, Load.resistor(200.0)).zin
+    np.testing.assert_allclose(got.real, ref.real, rtol=1e-7)
+    np.testing.assert_allclose(got.imag, ref.imag, rtol=1e-7)
