@@ -112,3 +112,26 @@ def test_flux_at_power():
     assert v == pytest.approx(70.7, rel=0.1)
     assert r.peak_flux_t[0, 0] == pytest.approx(v / (4.44 * 7e6 * 4 * STACK2.ae), rel=1e-9)
     assert 0 < r.core_loss_w[0, 0] < 100.0
+
+
+def test_characterise_from_files_matches_arrays(real_dir):
+    # The file path reads through read_touchstone and gives the same fit as the arrays.
+    from cmcheck.transformer.characterise import characterise_from_files
+
+    d = real_dir / "efhw-transformers"
+    a = characterise_from_files(d / "stack2-4t28t-primary-secondary-open.s1p",
+                                d / "stack2-4t28t-primary-secondary-shorted.s1p", 4, 49, STACK2)
+    assert a.transformer.ae == STACK2.ae
+    assert a.transformer.leakage_h == pytest.approx(
+        characterise_flux_coupled(*_z(real_dir, "stack2-4t28t-primary-secondary-open.s1p"),
+                                  *_z(real_dir, "stack2-4t28t-primary-secondary-shorted.s1p"),
+                                  4, 49, air_core_inductance(STACK2.c1, 1)).transformer.leakage_h, rel=1e-9)
+
+
+def test_flux_coupled_bad_parameters_are_named():
+    from cmcheck.errors import TransformerError
+
+    with pytest.raises(TransformerError, match="primary_leakage_share"):
+        FluxCoupled(4, 49, 1e-9, Debye(800.0, 7e6), 1e-7, primary_leakage_share=1.5)
+    with pytest.raises(TransformerError, match="impedance_ratio"):
+        FluxCoupled(4, 0.0, 1e-9, Debye(800.0, 7e6), 1e-7)

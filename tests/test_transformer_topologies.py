@@ -249,3 +249,39 @@ def test_wound_ruthroff_equals_scikit_rf_circuit():
     got = analyse(TOPOLOGIES["ruthroff-4:1-unun"], f, w, Load.resistor(200.0)).zin
     np.testing.assert_allclose(got.real, ref.real, rtol=1e-7)
     np.testing.assert_allclose(got.imag, ref.imag, rtol=1e-7)
+
+
+def test_model_reports_both_cmrr_figures():
+    # Bockelman & Eisenstadt 1995: the mixed-mode CMRR of the transformer alone (50 Ω legs)
+    # equals the terminal-current CMRR when the actual legs are 50 Ω to ground and the load
+    # floats open (the currents then are the port currents of the three-port).
+    f = np.array([5e6, 15e6])
+    line = IdealLine(50.0, 2e-9, lambda ff: np.full(ff.shape, 400 + 300j))
+    r = analyse(TOPOLOGIES["guanella-1:1"], f, line, Load.resistor(1e12, leg_p=50.0, leg_n=50.0))
+    np.testing.assert_allclose(r.cmrr_db, r.mixed_mode_cmrr_db, atol=1e-6)
+    unun = analyse(TOPOLOGIES["ruthroff-4:1-unun"], f, line, Load.resistor(200.0))
+    assert unun.cmrr_db is None and unun.mixed_mode_cmrr_db is None
+
+
+@pytest.mark.parametrize(
+    "kwargs, word",
+    [({"power_w": 0.0}, "power_w"), ({"source_impedance": -50.0}, "source_impedance")],
+)
+def test_analyse_bad_drive_names_parameter(kwargs, word):
+    with pytest.raises(TransformerError, match=word):
+        analyse(TOPOLOGIES["guanella-1:1"], [1e6], ideal(50.0, 10.0), Load.resistor(50.0), **kwargs)
+
+
+@pytest.mark.parametrize(
+    "call, word",
+    [
+        (lambda: Load.resistor(0.0), "resistance"),
+        (lambda: Load.resistor(50.0, lead_inductance=-1e-9), "lead_inductance"),
+        (lambda: Load.complex(50.0, leg_p=0.0), "leg_p"),
+        (lambda: LineWinding(RingCore(0.03, 0.02, 0.01), get_material("nizn-800"), 0, Wire(1e-3)), "turns"),
+        (lambda: IdealLine(-50.0, 1e-9), "z0"),
+    ],
+)
+def test_bad_specs_name_parameter(call, word):
+    with pytest.raises(TransformerError, match=word):
+        call()

@@ -11,6 +11,7 @@ import numpy as np
 
 from ..design.heat import dissipation_from_voltage, peak_flux_density
 from ..errors import TransformerError
+from ..measurement.balance import three_port_balance
 from .circuit import GROUND, Circuit
 from .elements import line_on_core_y
 from .flux import FluxCoupled
@@ -104,6 +105,10 @@ class TransformerResult:
     cmrr_db : numpy.ndarray or None
         Model CMRR 20·log10(|Ip − In|/|Ip + In|) from the currents out of the two output
         terminals into the actual load and leg-to-ground impedances [dB]; None for an unun.
+    mixed_mode_cmrr_db : numpy.ndarray or None
+        |Sds21/Scs21| [dB] of the transformer alone as a three-port with 50 Ω legs, the figure
+        a VNA measurement gives (Bockelman & Eisenstadt, IEEE T-MTT 43(7), 1995); None for an
+        unun or when an output is the input node.
     output_current : numpy.ndarray
         (F, outputs) currents out of each output terminal [A] at the analysed drive.
     power_w : float
@@ -131,6 +136,7 @@ class TransformerResult:
     winding_voltage: np.ndarray
     peak_flux_t: np.ndarray | None
     core_loss_w: np.ndarray | None
+    mixed_mode_cmrr_db: np.ndarray | None = None
 
 
 def analyse(topology: Topology, frequency_hz, transformer, load: Load, *, source_impedance: float = 50.0,
@@ -213,8 +219,13 @@ def analyse(topology: Topology, frequency_hz, transformer, load: Load, *, source
         loss = dissipation_from_voltage(np.abs(vw), zcore)
         if turns and ae:
             flux = peak_flux_density(np.abs(vw), f[:, None], turns, ae)
+    mixed = None
+    if topology.balanced and topology.input not in topology.outputs:
+        ports = [topology.input, *topology.outputs]
+        s3 = build_circuit(topology, f, transformer).s_parameters(ports, 50.0)
+        mixed = three_port_balance(f, s3).cmrr_db
     return TransformerResult(f, zin, mf["swr"], mf["return_loss_db"], mf["mismatch_loss_db"], il, cmrr, out_i,
-                             float(power_w), np.abs(vload), np.abs(vw), flux, loss)
+                             float(power_w), np.abs(vload), np.abs(vw), flux, loss, mixed)
 
 
 def design_network(topology: Topology, frequency_hz, transformer, z0: float = 50.0, name: str | None = None):

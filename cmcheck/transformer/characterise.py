@@ -20,7 +20,7 @@ from ..model.materials import Debye
 from .circuit import GROUND, Circuit
 from .flux import FluxCoupled
 
-__all__ = ["Characterisation", "characterise_flux_coupled", "reflection_to_impedance"]
+__all__ = ["Characterisation", "characterise_flux_coupled", "characterise_from_files", "reflection_to_impedance"]
 
 #: Conductance standing in for the shorted secondary [S] (a 1 µΩ short).
 _SHORT_S = 1e6
@@ -159,3 +159,34 @@ def characterise_flux_coupled(open_f, open_z, short_f, short_z, primary_turns: i
     sol = least_squares(residual, q0, method="trf", x_scale="jac")
     rms = float(np.sqrt(np.mean(sol.fun**2)))
     return Characterisation(build(sol.x), rms, int(of.size + sf.size))
+
+
+def characterise_from_files(open_path, short_path, primary_turns: int, impedance_ratio: float, core,
+                            f_min: float = 300e3) -> Characterisation:
+    """:func:`characterise_flux_coupled` from two one-port Touchstone files of the primary.
+
+    Parameters
+    ----------
+    open_path, short_path : str or path
+        Primary reflection with the secondary open, and with it shorted (``.s1p``).
+    primary_turns, impedance_ratio, f_min
+        As for :func:`characterise_flux_coupled`.
+    core : RingCore or FactorCore
+        The core (its ``c1`` gives L0; its ``ae``, when present, is kept for flux).
+
+    References
+    ----------
+    As for :func:`characterise_flux_coupled`; reflection to impedance: Pozar, *Microwave
+    Engineering*, 4th ed., eq. (2.35).
+    """
+    from ..measurement.touchstone import read_touchstone
+    from ..model.choke import air_core_inductance
+
+    curves = []
+    for path in (open_path, short_path):
+        s = read_touchstone(path)
+        if s.n_ports != 1:
+            raise MeasurementError(f"{path}: the open/short test needs a one-port reflection file, got {s.n_ports} ports")
+        curves += [s.frequency_hz, reflection_to_impedance(s.s[:, 0, 0], s.z0)]
+    return characterise_flux_coupled(*curves, primary_turns, impedance_ratio, air_core_inductance(core.c1, 1),
+                                     f_min=f_min, ae=getattr(core, "ae", None))
