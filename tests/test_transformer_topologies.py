@@ -285,3 +285,15 @@ def test_analyse_bad_drive_names_parameter(kwargs, word):
 def test_bad_specs_name_parameter(call, word):
     with pytest.raises(TransformerError, match=word):
         call()
+
+
+@pytest.mark.parametrize("x_over_r, loss_db", [(2.0, 0.263), (4.0, 0.067)])
+def test_low_frequency_choking_reactance_costs_mismatch(x_over_r, loss_db):
+    # Ruthroff 1959: at low frequency the bootstrap winding's reactance X sits across the
+    # 50 Ω input; mismatch loss −10·log10(1 − |Γ|²) (Pozar, Microwave Engineering 4th ed.,
+    # §2.3): X = 2R → 0.26 dB, X = 4R → 0.067 dB (worked by hand: Zin = 40 + j20 Ω for X = 2R).
+    line = IdealLine(100.0, 1e-12, lambda ff: np.full(ff.shape, 1j * x_over_r * 50.0))
+    r = analyse(TOPOLOGIES["ruthroff-4:1-unun"], np.array([1e5]), line, Load.resistor(200.0))
+    assert round(float(r.mismatch_loss_db[0]), 3) == loss_db
+    if x_over_r == 2.0:
+        assert r.zin[0].real == pytest.approx(40.0, rel=1e-5) and r.zin[0].imag == pytest.approx(20.0, rel=1e-5)

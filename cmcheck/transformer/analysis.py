@@ -50,7 +50,7 @@ def match_figures(zin, z_source=50.0):
         "gamma": g,
         "swr": (1.0 + m) / (1.0 - m),
         "return_loss_db": rl,
-        "mismatch_loss_db": -10.0 * np.log10(1.0 - m**2),
+        "mismatch_loss_db": -10.0 * np.log10(1.0 - m**2) + 0.0,  # + 0.0: no "-0" for a perfect match
     }
 
 
