@@ -297,3 +297,31 @@ def test_low_frequency_choking_reactance_costs_mismatch(x_over_r, loss_db):
     assert round(float(r.mismatch_loss_db[0]), 3) == loss_db
     if x_over_r == 2.0:
         assert r.zin[0].real == pytest.approx(40.0, rel=1e-5) and r.zin[0].imag == pytest.approx(20.0, rel=1e-5)
+
+
+def _wound_4to1():
+    return LineWinding(RingCore(35.6e-3, 23e-3, 12.7e-3), get_material("nizn-800"), 8, Wire(awg_diameter(18), 0.035e-3, 3.5))
+
+
+def test_one_core_guanella_4to1():
+    import dataclasses
+
+    from cmcheck.transformer.topologies import LineElement
+
+    one = TOPOLOGIES["guanella-4:1-one-core"]
+    # Guanella 1944: with ideal choking and Z0 = RL/2 the one-core form is also RL/4 at every θ.
+    f = np.linspace(1e6, 80e6, 5)
+    r = analyse(one, f, ideal(100.0, 40.0), Load.resistor(200.0))
+    np.testing.assert_allclose(r.zin.real, 50.0, atol=1e-6)
+    np.testing.assert_allclose(r.zin.imag, 0.0, atol=1e-6)
+    # Coupled windings on one core (MIT EE Staff, Magnetic Circuits and Transformers, ch. XVIII):
+    # wound in opposite senses the pairs' opposed net currents add their flux, so at low
+    # frequency the one-core form chokes better than two separate cores (floating load) ...
+    w = _wound_4to1()
+    lo = np.array([0.5e6])
+    two_cores = analyse(TOPOLOGIES["guanella-4:1"], lo, w, Load.resistor(200.0))
+    one_core = analyse(one, lo, w, Load.resistor(200.0))
+    assert one_core.swr[0] < two_cores.swr[0]
+    # ... while wound in the same sense those fluxes cancel and the load is shorted.
+    same = dataclasses.replace(one, lines=(LineElement(one.lines[0].end1, one.lines[0].end2, "same"),))
+    assert abs(analyse(same, lo, w, Load.resistor(200.0)).zin[0]) < 5.0

@@ -9,7 +9,7 @@ Public API: lines (:class:`PairLine`, Z0 formulas), elements (admittance stamps)
 from .analysis import TransformerResult, analyse, build_circuit, design_network, match_figures
 from .characterise import Characterisation, characterise_flux_coupled, characterise_from_files, reflection_to_impedance
 from .circuit import GROUND, REFERENCE_LEAK_S, Circuit, NodalSolution
-from .elements import coupled_windings_y, line_on_core_y, line_two_port_y, pair_on_core_y
+from .elements import coupled_windings_y, line_on_core_y, line_two_port_y, pair_on_core_y, two_pairs_one_core_y
 from .flux import FluxCoupled, leakage_estimate, loop_inductance
 from .lines import PairLine, coax_z0, default_pair_spacing, line_constants, sheathed_pair_eps_eff, two_wire_z0, winding_line_length
 from .loads import Load
@@ -22,5 +22,6 @@ __all__ = [
     "build_circuit", "characterise_flux_coupled", "characterise_from_files", "coax_z0", "coupled_windings_y",
     "default_pair_spacing", "design_network", "get_topology", "leakage_estimate", "line_constants",
     "line_on_core_y", "line_two_port_y", "load_topology", "loop_inductance", "match_figures", "pair_on_core_y",
-    "parse_topology", "reflection_to_impedance", "sheathed_pair_eps_eff", "two_wire_z0", "winding_line_length",
+    "parse_topology", "reflection_to_impedance", "sheathed_pair_eps_eff", "two_pairs_one_core_y", "two_wire_z0",
+    "winding_line_length",
 ]

@@ -13,7 +13,7 @@ from ..design.heat import dissipation_from_voltage, peak_flux_density
 from ..errors import TransformerError
 from ..measurement.balance import three_port_balance
 from .circuit import GROUND, Circuit
-from .elements import line_on_core_y
+from .elements import line_on_core_y, two_pairs_one_core_y
 from .flux import FluxCoupled
 from .loads import Load
 from .topologies import Topology
@@ -76,8 +76,13 @@ def build_circuit(topology: Topology, frequency_hz, transformer) -> Circuit:
     zc, gl = transformer.constants(f)
     zw = transformer.z_winding(f)
     y = line_on_core_y(topology.conductors, zc, gl, zw)
+    l0 = getattr(transformer, "l0", None)
+    z_air = None if (zw is None or l0 is None) else 2j * np.pi * f * l0
     for line in topology.lines:
-        c.stamp(line.nodes, y)
+        if line.one_core:
+            c.stamp(line.nodes, two_pairs_one_core_y(zc, gl, zw, z_air, line.one_core))
+        else:
+            c.stamp(line.nodes, y)
     return c
 
 
@@ -207,9 +212,11 @@ def analyse(topology: Topology, frequency_hz, transformer, load: Load, *, source
         turns, ae = t.primary_turns, t.ae
     else:
         n = topology.conductors
-        vw = np.stack(
-            [sum(sol.v(x) for x in ln.end1) / n - sum(sol.v(x) for x in ln.end2) / n for ln in topology.lines], -1
-        )
+        # The voltage along each winding driving its core: the common-mode drop of the line; for
+        # two pairs on one core the first pair's drop, which is the core's voltage per N turns
+        # (the other pair's is the same up to sign when the core-linked mode dominates).
+        groups = [(ln.end1[:n], ln.end2[:n]) for ln in topology.lines]
+        vw = np.stack([sum(sol.v(x) for x in e1) / n - sum(sol.v(x) for x in e2) / n for e1, e2 in groups], -1)
         zw = transformer.z_winding(f)
         zcore = None if zw is None else zw[:, None]
         core = getattr(transformer, "core", None)

@@ -20,6 +20,7 @@ __all__ = [
     "line_on_core_y",
     "line_two_port_y",
     "pair_on_core_y",
+    "two_pairs_one_core_y",
 ]
 
 
@@ -213,3 +214,73 @@ def coupled_windings_y(z_magnetising, ratios, z_leakage):
     a[np.arange(m), 2 * np.arange(m)] = 1.0
     a[np.arange(m), 2 * np.arange(m) + 1] = -1.0
     return np.einsum("ki,fkl,lj->fij", a, yp, a)
+
+
+def two_pairs_one_core_y(zc_pair, gamma_l, z_winding=None, z_air=None, sense: str = "opposite"):
+    """Two bifilar pairs wound on one core: terminals (a1, b1, c1, d1, a2, b2, c2, d2).
+
+    Pairs (a, b) and (c, d) are lines of pair impedance Zc. The net currents I1 of pair 1 and
+    I2 of pair 2 share the core: wound in opposite senses the core links I1 − I2 (the
+    pair-to-pair mode sees 4·Zw, the total I1 + I2 only the air-core Z_air), in the same sense
+    it links I1 + I2 (the total sees Zw, the pair-to-pair mode 4·Z_air). Modes: pair
+    differentials V_a − V_b and V_c − V_d (lines), the mean of all four (total), and the
+    difference of the pairs' means (pair-to-pair), as Mᵀ·diag(Y)·M.
+
+    Parameters
+    ----------
+    zc_pair : array_like of complex
+        Characteristic impedance of each pair [Ω], shape (F,).
+    gamma_l : array_like of complex
+        γ·l of the pairs [dimensionless], shape (F,).
+    z_winding : array_like of complex or None
+        Impedance of one pair's N turns on the core for its net current (the choke model) [Ω];
+        None for ideal choking.
+    z_air : array_like of complex or None
+        The same turns without the core's permeability, jωL0 [Ω]; None: no current in the
+        mode the core does not link (ideal).
+    sense : str
+        ``"opposite"`` or ``"same"``: the second pair's winding sense relative to the first.
+
+    Returns
+    -------
+    numpy.ndarray of complex
+        Y [S], shape (F, 8, 8).
+
+    Notes
+    -----
+    Stated approximations: the two pairs do not couple as lines (far apart on the ring); the
+    modes the core links are lumped series impedances (windings short against a wavelength);
+    the mode it does not link sees the air-core inductance of the turns.
+
+    References
+    ----------
+    G. Guanella, Brown Boveri Review 31, 1944 (the 4:1 of two lines); modal form as in
+    C. R. Paul, *Analysis of Multiconductor Transmission Lines*, 2nd ed., 2008, ch. 7;
+    flux linkage of two windings on one core: MIT EE Staff, *Magnetic Circuits and
+    Transformers*, 1943, ch. XVIII.
+    """
+    if sense not in ("opposite", "same"):
+        raise TransformerError(f"sense must be 'opposite' or 'same', got {sense!r}")
+    gl = np.asarray(gamma_l, dtype=complex)
+    f_len = gl.shape[0]
+    zc = _as_f(zc_pair, f_len, "zc_pair")
+    yl = line_two_port_y(zc, gl)
+    # Mode voltages at one end: pair-1 differential, pair-2 differential, total mean, pair-to-pair.
+    m1 = np.array([[1, -1, 0, 0], [0, 0, 1, -1], [0.25, 0.25, 0.25, 0.25], [0.5, 0.5, -0.5, -0.5]])
+    y = np.zeros((f_len, 8, 8), dtype=complex)
+    for k in (0, 1):
+        mk = np.zeros((2, 8))
+        mk[0, :4], mk[1, 4:] = m1[k], m1[k]
+        y += np.einsum("ki,fkl,lj->fij", mk, yl, mk)
+    s = np.array([[1.0, -1.0], [-1.0, 1.0]])
+    core_row, air_row, core_factor, air_factor = (3, 2, 4.0, 1.0) if sense == "opposite" else (2, 3, 1.0, 4.0)
+    for row, z, factor, name in ((core_row, z_winding, core_factor, "z_winding"), (air_row, z_air, air_factor, "z_air")):
+        if z is None:
+            continue
+        z = _as_f(z, f_len, name)
+        if np.any(z == 0):
+            raise TransformerError(f"{name} must be non-zero at every frequency")
+        mk = np.zeros((2, 8))
+        mk[0, :4], mk[1, 4:] = m1[row], m1[row]
+        y += np.einsum("ki,kl,lj->ij", mk, s, mk)[None] / (factor * z)[:, None, None]
+    return y

@@ -25,17 +25,29 @@ class LineElement:
     Parameters
     ----------
     end1, end2 : tuple of str
-        Node of each conductor at end 1 and at end 2 (same order, 2 or 3 conductors).
+        Node of each conductor at end 1 and at end 2 (same order, 2 or 3 conductors; 4 for
+        two pairs on one core).
+    one_core : str or None
+        For two pairs (a, b), (c, d) sharing one core: ``"opposite"`` or ``"same"``, the
+        second pair's winding sense (see :func:`cmcheck.transformer.elements.two_pairs_one_core_y`).
     """
 
     end1: tuple
     end2: tuple
+    one_core: str | None = None
 
     def __post_init__(self) -> None:
         if len(self.end1) != len(self.end2) or len(self.end1) < 2:
             raise TransformerError(
                 f"a line needs the same number (≥ 2) of end-1 and end-2 nodes, got {len(self.end1)} and {len(self.end2)}"
             )
+        if self.one_core is not None and (self.one_core not in ("opposite", "same") or len(self.end1) != 4):
+            raise TransformerError(f"one_core needs 4 conductors and 'opposite' or 'same', got {self.one_core!r}")
+
+    @property
+    def winding_conductors(self) -> int:
+        """Conductors of the winding spec this line uses (2 for two pairs on one core)."""
+        return 2 if self.one_core else len(self.end1)
 
     @property
     def conductors(self) -> int:
@@ -88,7 +100,7 @@ class Topology:
         if self.kind == "line":
             if not self.lines:
                 raise TransformerError(f"topology {self.name!r} has no line")
-            counts = {ln.conductors for ln in self.lines}
+            counts = {ln.winding_conductors for ln in self.lines}
             if len(counts) != 1:
                 raise TransformerError(f"topology {self.name!r} mixes line conductor counts {sorted(counts)}")
             used = {n for ln in self.lines for n in ln.nodes}
@@ -101,7 +113,7 @@ class Topology:
     @property
     def conductors(self) -> int:
         """Conductors per line (0 for flux-coupled)."""
-        return self.lines[0].conductors if self.lines else 0
+        return self.lines[0].winding_conductors if self.lines else 0
 
     @property
     def balanced(self) -> bool:
@@ -109,8 +121,8 @@ class Topology:
         return len(self.outputs) == 2
 
 
-def _line(end1, end2) -> LineElement:
-    return LineElement(tuple(end1), tuple(end2))
+def _line(end1, end2, one_core=None) -> LineElement:
+    return LineElement(tuple(end1), tuple(end2), one_core)
 
 
 #: Built-in topologies (connections after Guanella 1944 and Ruthroff 1959; see each description).
@@ -123,6 +135,10 @@ TOPOLOGIES: dict[str, Topology] = {
                  lines=(_line(("in", GROUND), ("outp", "mid")), _line(("in", GROUND), ("mid", "outn"))),
                  outputs=("outp", "outn"),
                  description="current balun: two lines, inputs in parallel, outputs in series, each on its own core"),
+        Topology("guanella-4:1-one-core", 4,
+                 lines=(LineElement(("in", GROUND, "in", GROUND), ("outp", "mid", "mid", "outn"), "opposite"),),
+                 outputs=("outp", "outn"),
+                 description="current balun: two pairs on one core in opposite senses, inputs parallel, outputs series"),
         Topology("ruthroff-4:1-unun", 4, lines=(_line(("in", GROUND), ("out", "in")),),
                  description="voltage-adding (bootstrap) unun (Ruthroff, Proc. IRE 47, 1959)"),
         Topology("ruthroff-4:1-balun", 4, lines=(_line((GROUND, "in"), ("outn", GROUND)),), outputs=("in", "outn"),
@@ -175,14 +191,14 @@ def parse_topology(text: str, source: str = "topology") -> Topology:
         raise TransformerError(f"{source}: 'line' must be an array of tables ([[line]])")
     lines = []
     for i, entry in enumerate(data["line"], 1):
-        bad = set(entry) - {"end1", "end2"}
+        bad = set(entry) - {"end1", "end2", "one_core"}
         if bad or "end1" not in entry or "end2" not in entry:
-            raise TransformerError(f"{source}: line {i} needs exactly the keys end1 and end2")
+            raise TransformerError(f"{source}: line {i} needs the keys end1 and end2 (and optionally one_core)")
         for k in ("end1", "end2"):
             if not isinstance(entry[k], list) or not all(isinstance(n, str) and n for n in entry[k]):
                 raise TransformerError(f"{source}: line {i} {k} must be a list of node names")
         try:
-            lines.append(_line(entry["end1"], entry["end2"]))
+            lines.append(_line(entry["end1"], entry["end2"], entry.get("one_core")))
         except TransformerError as exc:
             raise TransformerError(f"{source}: line {i}: {exc}") from None
     outputs = data.get("outputs", ["out"])
