@@ -75,10 +75,10 @@ def line_two_port_y(zc, gamma_l):
 def line_on_core_y(conductors: int, zc_pair, gamma_l, z_winding=None):
     """Terminal admittance of N conductors wound together on a core (symmetric bundle).
 
-    Terminals are ordered (c1 end 1, …, cN end 1, c1 end 2, …, cN end 2).
-    With P = I − 11ᵀ/N (differential subspace), Yd the line's two-port admittance for the
-    per-conductor modal impedance Zc/2, and 1/Zw for the mean voltage drop along the bundle:
-    Y = Yd ⊗ P·(2/Zc-scaled) + [[1, −1], [−1, 1]] ⊗ 11ᵀ/(N²·Zw), i.e. Mᵀ·diag(Y_line, Y_cm)·M.
+    Terminals are ordered (c1 end 1, …, cN end 1, c1 end 2, …, cN end 2). With the projector
+    P = I − 11ᵀ/N onto the differential subspace, Y_d the two-port admittance of a line of the
+    per-conductor modal impedance Zc/2, and S = [[1, −1], [−1, 1]] between the two ends:
+    Y = Y_d ⊗ P + S ⊗ 11ᵀ/(N²·Zw) — the form Mᵀ·diag(Y_line, Y_cm)·M for N conductors.
 
     Parameters
     ----------

@@ -29,7 +29,7 @@ class IdealLine:
         Pair characteristic impedance [Ω].
     delay_s : float
         One-way delay τ [s]; θ = 2π f τ.
-    z_winding : callable or None
+    z_winding_fn : callable or None
         f [Hz] → common-mode impedance [Ω], shape (F,); None for ideal choking.
     conductors : int
         Conductors in the bundle (2 bifilar, 3 trifilar).
