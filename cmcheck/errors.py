@@ -61,3 +61,10 @@ class CmcheckWarning(UserWarning):
 
 
 __all__.append("CmcheckWarning")
+
+
+class TransformerError(CmcheckError, ValueError):
+    """A transformer, its lines, circuit or topology file is impossible or inconsistent."""
+
+
+__all__.append("TransformerError")
