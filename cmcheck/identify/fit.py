@@ -314,8 +314,8 @@ def fit_dispersion(frequency_hz, mu, *, families=(), accept=0.10, forms=("debye"
         chi, fr = start[0] - 1.0, start[1]
         best = None
         for share in (0.7, 0.3):
-            for a in (0.3, 1.0, 3.0):
-                for d in (1.0, 4.0):
+            for a in (0.3, 1.0):
+                for d in (3.0,):
                     x0 = [share * chi, a * fr, d * a * fr, (1 - share) * chi, fr * 1.5]
                     p, sd, rms, cost = fit_form(f, mu, model, x0, names)
                     if best is None or cost < best[3]:

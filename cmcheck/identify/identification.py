@@ -19,7 +19,7 @@ from ..errors import CmcheckWarning, IdentificationError
 from ..model.materials import Material, Tabulated, TwoComponent, Debye
 from .fit import DispersionFit, FamilyConstants, fit_dispersion, nearest_material
 from .permeability import REASONS, PermeabilityData, measured_permeability
-from .resonance import SelfResonance, cp_from_resonance, estimate_cp, find_self_resonance
+from .resonance import SelfResonance, estimate_cp, find_self_resonance
 
 __all__ = ["Identification", "identify"]
 
@@ -173,6 +173,59 @@ class Identification:
         }
 
 
+def _joint_cp(f, z, error, f0, l0, r_conductor, fit: DispersionFit, cp0):
+    """Cp from one least-squares fit of Z = 1/(1/(jωL0µ(f; p) + Rc) + jωCp) over the sweep up to
+    1.3 f0, the dispersion parameters p free alongside Cp (weights 1/max(error, 1 %)).
+
+    Near resonance Z is most sensitive to Cp, so the points the µ inversion cannot trust are the
+    ones that fix Cp. Returns (Cp [F], its relative standard uncertainty) or None.
+    """
+    from scipy.optimize import least_squares  # kept off the CLI start-up path
+
+    from .fit import FORMS
+
+    sel = np.isfinite(z) & (f <= 1.3 * f0) & (z != 0)
+    if sel.sum() < 8:
+        return None
+    ff, zz = f[sel], z[sel]
+    err = np.full(ff.size, 0.01) if error is None else np.maximum(np.asarray(error, float)[sel], 0.01)
+    if ff.size > 400:
+        pick = np.unique(np.searchsorted(ff, np.geomspace(ff[0], ff[-1], 400)).clip(0, ff.size - 1))
+        ff, zz, err = ff[pick], zz[pick], err[pick]
+    err = np.where(np.isfinite(err), err, 1e3)
+    w = 2.0 * np.pi * ff
+    p0 = np.array(list(fit.parameters.values()), float)
+    if fit.family is not None:
+        def mu_of(q):
+            return fit.family.permeability(ff, 1.0 + q[0])
+        p0 = np.array([p0[0] - 1.0])
+    else:
+        model = FORMS[fit.form][1]
+
+        def mu_of(q):
+            return model(ff, q)
+
+    def resid(x):
+        q, cp = np.exp(x[:-1]), np.exp(x[-1])
+        zm = 1.0 / (1.0 / (1j * w * l0 * mu_of(q) + r_conductor) + 1j * w * cp)
+        d = np.log(zm / zz) / err
+        return np.concatenate([d.real, d.imag])
+
+    x0 = np.log(np.append(np.maximum(p0, 1e-9), cp0))
+    with np.errstate(all="ignore"):
+        sol = least_squares(resid, x0, method="trf", max_nfev=2000)
+    if not sol.success or not np.all(np.isfinite(sol.x)):
+        return None
+    m, n = sol.fun.size, sol.x.size
+    s2 = float(sol.fun @ sol.fun) / max(m - n, 1)
+    try:
+        var = s2 * np.linalg.inv(sol.jac.T @ sol.jac)[-1, -1]
+    except np.linalg.LinAlgError:
+        return None
+    rel = float(np.sqrt(var)) if var >= 0 and np.isfinite(var) else np.inf
+    return float(np.exp(sol.x[-1])), rel
+
+
 def identify(measured, *, c1: float, turns: float, cp_f: float | None = None, cp_uncertainty_f: float = 0.0,
              r_conductor: float = 0.0, families=(), candidates=(), forms=("debye", "two_component"),
              accept: float = 0.10, resonance_fraction: float = 0.7, tolerance: float = 0.10) -> Identification:
@@ -254,27 +307,18 @@ def identify(measured, *, c1: float, turns: float, cp_f: float | None = None, cp
     # Cp's uncertainty is only known once the model is fitted: the first passes leave it out.
     data, fit = run(cp, 0.0 if cp_f is None else u_cp)
     if res is not None and cp_f is None:
-        w0 = 2.0 * np.pi * res.frequency_hz
         closed = cp
-        for _ in range(8):
-            zw0 = 1j * w0 * data.l0_h * fit.permeability(res.frequency_hz) + r_conductor
-            new = cp_from_resonance(res.frequency_hz, zw0)
-            if not (np.isfinite(new) and new > 0):
-                notes.append("the fitted model does not resonate at the measured frequency; Cp kept from the closed form")
-                break
-            done = abs(new - cp) <= 1e-3 * new
-            cp = float(new)
-            # The model's rms misfit stands for the uncertainty of its µ at the resonance
-            # (parameter uncertainties of a five-parameter form are too correlated to propagate).
-            u_cp = float(cp * np.hypot(2.0 * res.uncertainty_hz / res.frequency_hz, fit.rms_relative_error))
-            data, fit = run(cp, 0.0)
-            if done:
-                break
+        joint = _joint_cp(f, z, error, res.frequency_hz, data.l0_h, r_conductor, fit, cp)
+        if joint is None:
+            notes.append("the joint fit of Cp and µ(f) through the resonance failed; Cp kept from the closed form")
+        else:
+            cp, rel_fit = joint
+            u_cp = float(cp * np.hypot(2.0 * res.uncertainty_hz / res.frequency_hz, rel_fit))
+            method = "joint fit of Cp and the dispersion model to Z through the self-resonance"
+            if abs(cp - closed) > 3 * max(u_cp, 1e-18):
+                notes.append(f"Cp from the joint fit ({cp * 1e12:.3g} pF) differs from the closed form "
+                             f"({closed * 1e12:.3g} pF): the core disperses below the resonance")
         data, fit = run(cp, u_cp)
-        method = "resonance of the fitted winding model at the measured self-resonance"
-        if abs(cp - closed) > 3 * max(u_cp, 1e-18):
-            notes.append(f"Cp from the fitted model ({cp * 1e12:.3g} pF) differs from the closed form "
-                         f"({closed * 1e12:.3g} pF): the core disperses below the resonance")
     n_model = int((~data.trusted).sum())
     if n_model:
         warnings.warn(f"{source or 'measured'}: {n_model} of {f.size} points are not trusted for µ "
