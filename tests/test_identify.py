@@ -56,14 +56,19 @@ def synthetic(tmp_path_factory):
     return extract(read_touchstone(d / "winding.s1p"), accuracy=Accuracy(floor_db=-70, cal_error=0.0))
 
 
+@pytest.fixture(scope="module")
+def identified(synthetic):
+    return _identify(synthetic)
+
+
 def _identify(ex, **kw):
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", CmcheckWarning)
         return identify(ex, c1=C1, turns=TURNS, **kw)
 
 
-def test_round_trip_recovers_mu_and_cp(synthetic):
-    r = _identify(synthetic)
+def test_round_trip_recovers_mu_and_cp(identified):
+    r = identified
     f0 = true_srf()
     assert r.self_resonance_hz == pytest.approx(f0, rel=0.02)
     # Issue acceptance: µ', µ'' within 5 % from 1 MHz to half the self-resonance, Cp within 10 %.
@@ -119,8 +124,8 @@ def test_free_form_fit_with_uncertainties(synthetic):
     assert 0 < r.model.rms_relative_error < 0.2
 
 
-def test_saved_material_covers_the_whole_band(synthetic, tmp_path):
-    r = _identify(synthetic)
+def test_saved_material_covers_the_whole_band(identified, tmp_path):
+    r = identified
     path = tmp_path / "identified.csv"
     r.save_material_csv(path)
     text = path.read_text(encoding="utf-8")
@@ -137,6 +142,22 @@ def test_saved_material_covers_the_whole_band(synthetic, tmp_path):
     assert np.all(np.isfinite(mat.permeability(np.array([f[0], f[-1]]))))
 
 
+def test_identified_material_feeds_back_into_the_choke_model(identified):
+    # Closing the loop: the saved table (measured where trusted, fitted model elsewhere) and the
+    # fitted analytic model, put back into the winding model with the identified Cp, reproduce
+    # the true winding (the formula at the top of this file) across the whole sweep, above the
+    # self-resonance too, where the table holds only the fitted model.
+    from cmcheck.model.choke import choke_impedance
+
+    r = identified
+    f = r.frequency_hz
+    zt = true_z(f)
+    for mat in (r.to_material(), r.fitted_material()):
+        zc = choke_impedance(f, r.data.l0_h, mat.permeability(f), 0.0, r.cp_f)
+        assert np.max(np.abs(zc.real - zt.real) / np.abs(zt)) < 0.05
+        assert np.max(np.abs(zc.imag - zt.imag) / np.abs(zt)) < 0.05
+
+
 def test_given_cp_is_used_and_bad_parameters_are_named(synthetic):
     r = _identify(synthetic, cp_f=CP)
     assert r.cp_f == CP and r.cp_method == "given"
@@ -150,8 +171,8 @@ def test_given_cp_is_used_and_bad_parameters_are_named(synthetic):
         measured_permeability([1e6, 2e6], [1j, 2j], c1=C1, turns=2, resonance_fraction=0)
 
 
-def test_trust_reasons_near_and_above_resonance(synthetic):
-    r = _identify(synthetic)
+def test_trust_reasons_near_and_above_resonance(identified):
+    r = identified
     f0 = r.self_resonance_hz
     assert not r.valid[r.frequency_hz >= f0].any()
     assert set(r.data.reason[r.frequency_hz >= f0]) == {"above_resonance"}
