@@ -206,3 +206,17 @@ def test_circuit_fit_of_a_single_tank_recovers_its_elements():
         fit_circuit(f, z, max_branches=0)
     with pytest.raises(IdentificationError, match="name"):
         ck.to_spice("bad name")
+
+
+def test_nearest_material_distance_is_the_stated_measure():
+    # Distance = rms |µ_cand − µ|/|µ| (stated in nearest_material): a measurement 10 % above a
+    # candidate in complex µ is at 0.1/1.1 from it (arithmetic).
+    from cmcheck.identify import nearest_material
+    from cmcheck.model.materials import Debye, Material
+
+    f = np.geomspace(1e5, 1e8, 50)
+    low = Material("low", Debye(100.0, 20e6))
+    high = Material("high", Debye(300.0, 20e6))
+    mu = 1.1 * low.permeability(f)
+    mat, d = nearest_material(f, mu, [high, low])
+    assert mat.name == "low" and d == pytest.approx(0.1 / 1.1, rel=1e-9)
