@@ -220,3 +220,18 @@ def test_nearest_material_distance_is_the_stated_measure():
     mu = 1.1 * low.permeability(f)
     mat, d = nearest_material(f, mu, [high, low])
     assert mat.name == "low" and d == pytest.approx(0.1 / 1.1, rel=1e-9)
+
+
+def test_family_follows_snoeks_law():
+    # Snoek (Physica 14, 1948): (µi − 1)·fr is constant within a family. A pure-spin family
+    # (spin_fraction 1) is a Debye relaxation (Tsutaoka 2003, eq. 2) with fr = S/(µi − 1),
+    # written out here for µi = 201 and S = 8 GHz, and the family fit must recover µi.
+    from cmcheck.identify import family_permeability, fit_dispersion
+
+    f = np.geomspace(1e5, 3e8, 80)
+    mu = 1 + 200 / (1 + 1j * f / (8e9 / 200))
+    assert np.allclose(family_permeability(f, 201.0, 8e9, 1.0, 1.0, 1.0), mu, rtol=1e-12)
+    fam = FamilyConstants("test family", 8e9)
+    fit = fit_dispersion(f, mu, families=[fam])
+    assert fit.form == "family:test family"
+    assert fit.parameters["mu_i"] == pytest.approx(201, rel=1e-6) and fit.rms_relative_error < 1e-6
