@@ -105,6 +105,8 @@ class FamilyConstants:
             raise IdentificationError(f"family {self.name!r}: dw_to_spin and damping_to_dw must be above 0")
 
     def permeability(self, frequency_hz, mu_i):
+        """µ' − jµ'' [dimensionless] of the member of initial permeability ``mu_i`` at
+        ``frequency_hz`` [Hz]; see :func:`family_permeability` (Snoek 1948, Tsutaoka 2003)."""
         return family_permeability(frequency_hz, mu_i, self.snoek_hz, self.spin_fraction, self.dw_to_spin,
                                    self.damping_to_dw)
 
@@ -343,9 +345,11 @@ def _with_rms(fit: DispersionFit, f, mu, tried) -> DispersionFit:
 def nearest_material(frequency_hz, mu, candidates) -> tuple[Material, float] | None:
     """The candidate material whose µ(f) lies nearest the measured one.
 
-    Distance: the rms over the given points of |µ_candidate − µ_measured|/|µ_measured|
-    (complex, so it weighs µ' and µ'' together) [dimensionless]; a tabulated candidate is
-    compared only where its table reaches, and skipped when it reaches no point.
+    Distance: the rms of |µ_candidate − µ_measured|/|µ_measured| (complex, so it weighs µ'
+    and µ'' together) [dimensionless], with equal weight per decade of frequency (each point
+    weighted by its share of ln f, so a linear sweep's crowded top decade does not dominate);
+    a tabulated candidate is compared only where its table reaches, and skipped when it
+    reaches no point.
 
     Parameters
     ----------
@@ -374,7 +378,9 @@ def nearest_material(frequency_hz, mu, candidates) -> tuple[Material, float] | N
             sel = (f >= lo) & (f <= hi)
         if not sel.any():
             continue
-        d = float(np.sqrt(np.mean(np.abs(mat.permeability(f[sel]) - mu[sel]) ** 2 / np.abs(mu[sel]) ** 2)))
+        w = _decade_weights(f[sel]) ** 2
+        e2 = np.abs(mat.permeability(f[sel]) - mu[sel]) ** 2 / np.abs(mu[sel]) ** 2
+        d = float(np.sqrt(np.sum(w * e2) / np.sum(w)))
         if best is None or d < best[1]:
             best = (mat, d)
     return best

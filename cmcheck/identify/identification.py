@@ -150,7 +150,7 @@ class Identification:
         near = None
         if self.nearest is not None:
             near = {"name": self.nearest[0].name, "distance": self.nearest[1], "description": self.nearest_description(),
-                    "distance_measure": "rms over trusted points of |µ_candidate − µ_measured|/|µ_measured|"}
+                    "distance_measure": "rms over trusted points, equal weight per decade, of |µ_candidate − µ_measured|/|µ_measured|"}
         return {
             "schema_version": SCHEMA_VERSION,
             "source": self.source,
