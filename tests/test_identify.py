@@ -235,3 +235,16 @@ def test_family_follows_snoeks_law():
     fit = fit_dispersion(f, mu, families=[fam])
     assert fit.form == "family:test family"
     assert fit.parameters["mu_i"] == pytest.approx(201, rel=1e-6) and fit.rms_relative_error < 1e-6
+
+
+def test_a_family_beaten_by_a_free_form_is_not_kept():
+    # Data from a Debye relaxation (µi 201, fr 40 MHz, Tsutaoka 2003 eq. 2, written out); a family
+    # whose Snoek product puts its member's fr at 50 MHz fits within a loose acceptance, but the
+    # free Debye form fits far better, so the family does not describe this core.
+    from cmcheck.identify import fit_dispersion
+
+    f = np.geomspace(1e5, 3e8, 80)
+    mu = 1 + 200 / (1 + 1j * f / 40e6)
+    fit = fit_dispersion(f, mu, families=[FamilyConstants("other", 10e9)], accept=0.5)
+    assert fit.alternatives["family:other"] < 0.5
+    assert fit.form == "debye" and fit.parameters["f_r"] == pytest.approx(40e6, rel=1e-6)

@@ -251,8 +251,11 @@ def _debye_start(f, mu):
 def fit_dispersion(frequency_hz, mu, *, families=(), accept=0.10, forms=("debye", "two_component")) -> DispersionFit:
     """Fit the families first (one parameter each), then the free forms; keep the best.
 
-    A family is kept when its rms relative error is at most ``accept``; otherwise the free form
-    with the lowest error is returned (Debye unless the two-component form halves the error).
+    The free forms are fitted too. A family is kept when its rms relative error is at most
+    ``accept`` and at most twice that of the best free form plus 1 % (a family that a free
+    form beats by more than that does not describe the core), or when it beats the free forms
+    outright. Among the free forms, Debye is kept unless the two-component form halves its error (and
+    gains more than 0.5 %).
 
     Parameters
     ----------
@@ -301,8 +304,6 @@ def fit_dispersion(frequency_hz, mu, *, families=(), accept=0.10, forms=("debye"
         fit = DispersionFit(key, {"mu_i": float(1.0 + p[0])}, {"mu_i": float(sd[0])}, rms, fam)
         if best_family is None or rms < best_family.rms_relative_error:
             best_family = fit
-    if best_family is not None and best_family.rms_relative_error <= accept:
-        return _with_rms(best_family, f_all, mu_all, tried)
     free: dict[str, DispersionFit] = {}
     if "debye" in forms or "two_component" in forms:
         names, model = FORMS["debye"]
@@ -330,9 +331,10 @@ def fit_dispersion(frequency_hz, mu, *, families=(), accept=0.10, forms=("debye"
         return _with_rms(best_family, f_all, mu_all, tried)
     pick = free.get("debye") or free["two_component"]
     if "two_component" in free and (pick.form != "two_component") and \
-            free["two_component"].rms_relative_error < 0.5 * pick.rms_relative_error:
+            free["two_component"].rms_relative_error < 0.5 * pick.rms_relative_error - 0.005:
         pick = free["two_component"]
-    if best_family is not None and best_family.rms_relative_error <= pick.rms_relative_error:
+    if best_family is not None and (best_family.rms_relative_error <= pick.rms_relative_error or (
+            best_family.rms_relative_error <= accept and best_family.rms_relative_error <= 2.0 * pick.rms_relative_error + 0.01)):
         pick = best_family
     return _with_rms(pick, f_all, mu_all, tried)
 
