@@ -152,6 +152,8 @@ class DispersionFit:
         sqrt(mean |µ_model − µ|²/|µ|²) over the fitted points [dimensionless].
     alternatives : dict
         rms relative error of every form tried.
+    others : tuple of DispersionFit
+        The other fitted forms (not chosen), e.g. for a joint Cp fit to start from.
     """
 
     form: str
@@ -160,6 +162,7 @@ class DispersionFit:
     rms_relative_error: float
     family: FamilyConstants | None = None
     alternatives: dict = field(default_factory=dict)
+    others: tuple = ()
 
     def permeability(self, frequency_hz):
         """µ' − jµ'' of the fitted model at ``frequency_hz`` [Hz]."""
@@ -255,7 +258,7 @@ def fit_dispersion(frequency_hz, mu, *, families=(), accept=0.10, forms=("debye"
     ``accept`` and at most twice that of the best free form plus 1 % (a family that a free
     form beats by more than that does not describe the core), or when it beats the free forms
     outright. Among the free forms, Debye is kept unless the two-component form halves its error (and
-    gains more than 0.5 %).
+    gains more than 0.1 %).
 
     Parameters
     ----------
@@ -331,17 +334,19 @@ def fit_dispersion(frequency_hz, mu, *, families=(), accept=0.10, forms=("debye"
         return _with_rms(best_family, f_all, mu_all, tried)
     pick = free.get("debye") or free["two_component"]
     if "two_component" in free and (pick.form != "two_component") and \
-            free["two_component"].rms_relative_error < 0.5 * pick.rms_relative_error - 0.005:
+            free["two_component"].rms_relative_error < 0.5 * pick.rms_relative_error - 0.001:
         pick = free["two_component"]
     if best_family is not None and (best_family.rms_relative_error <= pick.rms_relative_error or (
             best_family.rms_relative_error <= accept and best_family.rms_relative_error <= 2.0 * pick.rms_relative_error + 0.01)):
         pick = best_family
-    return _with_rms(pick, f_all, mu_all, tried)
+    others = list(free.values()) + ([best_family] if best_family is not None else [])
+    return _with_rms(pick, f_all, mu_all, tried, others)
 
 
-def _with_rms(fit: DispersionFit, f, mu, tried) -> DispersionFit:
+def _with_rms(fit: DispersionFit, f, mu, tried, others=()) -> DispersionFit:
     rms = float(np.sqrt(np.mean(np.abs(fit.permeability(f) - mu) ** 2 / np.abs(mu) ** 2)))
-    return DispersionFit(fit.form, fit.parameters, fit.uncertainties, rms, fit.family, tried)
+    return DispersionFit(fit.form, fit.parameters, fit.uncertainties, rms, fit.family, tried,
+                         tuple(o for o in others if o is not fit))
 
 
 def nearest_material(frequency_hz, mu, candidates) -> tuple[Material, float] | None:

@@ -174,11 +174,22 @@ class Identification:
 
 
 def _joint_cp(f, z, error, f0, l0, r_conductor, fit: DispersionFit, cp0):
+    """Cp from the joint fit (:func:`_joint_cp_one`) that fits Z best, starting from the chosen
+    dispersion fit and from each other form fitted beside it."""
+    best = None
+    for start in (fit, *fit.others):
+        out = _joint_cp_one(f, z, error, f0, l0, r_conductor, start, cp0)
+        if out is not None and (best is None or out[2] < best[2]):
+            best = out
+    return None if best is None else best[:2]
+
+
+def _joint_cp_one(f, z, error, f0, l0, r_conductor, fit: DispersionFit, cp0):
     """Cp from one least-squares fit of Z = 1/(1/(jωL0µ(f; p) + Rc) + jωCp) over the sweep up to
     1.3 f0, the dispersion parameters p free alongside Cp (weights 1/max(error, 1 %)).
 
     Near resonance Z is most sensitive to Cp, so the points the µ inversion cannot trust are the
-    ones that fix Cp. Returns (Cp [F], its relative standard uncertainty) or None.
+    ones that fix Cp. Returns (Cp [F], its relative standard uncertainty, cost) or None.
     """
     from scipy.optimize import least_squares  # kept off the CLI start-up path
 
@@ -223,7 +234,7 @@ def _joint_cp(f, z, error, f0, l0, r_conductor, fit: DispersionFit, cp0):
     except np.linalg.LinAlgError:
         return None
     rel = float(np.sqrt(var)) if var >= 0 and np.isfinite(var) else np.inf
-    return float(np.exp(sol.x[-1])), rel
+    return float(np.exp(sol.x[-1])), rel, float(sol.cost)
 
 
 def identify(measured, *, c1: float, turns: float, cp_f: float | None = None, cp_uncertainty_f: float = 0.0,
