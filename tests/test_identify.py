@@ -248,3 +248,14 @@ def test_a_family_beaten_by_a_free_form_is_not_kept():
     fit = fit_dispersion(f, mu, families=[FamilyConstants("other", 10e9)], accept=0.5)
     assert fit.alternatives["family:other"] < 0.5
     assert fit.form == "debye" and fit.parameters["f_r"] == pytest.approx(40e6, rel=1e-6)
+
+
+def test_cp_from_resonance_is_thomson_for_a_lossless_winding():
+    # Thomson's formula: a lossless L resonates with C = 1/(ω0²L); with loss R the admittance
+    # condition Im(1/(R + jω0L)) + ω0C = 0 gives C = L/(R² + ω0²L²) (algebra).
+    from cmcheck.identify import cp_from_resonance
+
+    f0, ind, r = 10e6, 50e-6, 800.0
+    w0 = 2 * np.pi * f0
+    assert cp_from_resonance(f0, 1j * w0 * ind) == pytest.approx(1 / (w0**2 * ind), rel=1e-12)
+    assert cp_from_resonance(f0, r + 1j * w0 * ind) == pytest.approx(ind / (r**2 + (w0 * ind) ** 2), rel=1e-12)

@@ -215,7 +215,8 @@ def estimate_cp(frequency_hz, z, usable=None, *, resonance: SelfResonance | None
     The uncertainty combines the resonance's and the spread of L. A cross-check from the
     capacitive side is returned beside it: just above resonance B/ω = Cp − 1/(ω²L) for a
     low-loss winding, so a line of B/ω against 1/ω² over 1.2–2 f0 has Cp as its intercept. A dispersive core (µ' already falling at f0) makes
-    the closed form low; :func:`cmcheck.identify.identify` refines it with the fitted µ(f0).
+    the closed form low; :func:`cmcheck.identify.identify` refines it by fitting Cp jointly with
+    the dispersion model through the resonance.
 
     Parameters
     ----------
