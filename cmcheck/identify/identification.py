@@ -17,7 +17,7 @@ import numpy as np
 from ..curve import ImpedanceCurve
 from ..errors import CmcheckWarning, IdentificationError
 from ..model.materials import Material, Tabulated, TwoComponent, Debye
-from .fit import DispersionFit, FamilyConstants, fit_dispersion, nearest_material
+from .fit import DispersionFit, fit_dispersion, nearest_material
 from .permeability import REASONS, PermeabilityData, measured_permeability
 from .resonance import SelfResonance, estimate_cp, find_self_resonance
 
@@ -294,7 +294,7 @@ def identify(measured, *, c1: float, turns: float, cp_f: float | None = None, cp
     notes: list[str] = []
     res = find_self_resonance(f, z)
     if cp_f is not None:
-        if not (np.isfinite(cp_f) and cp_f >= 0):
+        if not (isinstance(cp_f, (int, float, np.floating)) and np.isfinite(cp_f) and cp_f >= 0):
             raise IdentificationError(f"cp_f must be a capacitance ≥ 0 in F, got {cp_f!r}")
         cp, u_cp, method = float(cp_f), float(cp_uncertainty_f), "given"
     elif res is not None:
@@ -320,7 +320,7 @@ def identify(measured, *, c1: float, turns: float, cp_f: float | None = None, cp
     if res is not None and cp_f is None:
         closed = cp
         joint = _joint_cp(f, z, error, res.frequency_hz, data.l0_h, r_conductor, fit, cp)
-        if joint is None:
+        if joint is None or not np.isfinite(joint[1]):
             notes.append("the joint fit of Cp and µ(f) through the resonance failed; Cp kept from the closed form")
         else:
             cp, rel_fit = joint
