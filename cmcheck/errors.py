@@ -17,6 +17,7 @@ __all__ = [
     "TouchstoneError",
     "MeasurementError",
     "DesignError",
+    "IdentificationError",
 ]
 
 
@@ -54,6 +55,10 @@ class MeasurementError(CmcheckError, ValueError):
 
 class DesignError(CmcheckError, ValueError):
     """A sizing or comparison request is impossible (empty band, target ≤ 0, ...)."""
+
+
+class IdentificationError(CmcheckError, ValueError):
+    """A measured winding cannot be identified as asked (no resonance, too few trusted points, ...)."""
 
 
 class CmcheckWarning(UserWarning):
