@@ -14,7 +14,7 @@ import pytest
 
 from cmcheck.model.choke import ChokeDesign, predict
 from cmcheck.model.cores import RingCore
-from cmcheck.model.materials import builtin_materials
+from cmcheck.model.materials import get_material, builtin_materials
 from cmcheck.units import Band
 from cmcheck.model.winding import Cable
 
@@ -34,7 +34,7 @@ def test_predict_table_and_outputs(run_cli, tmp_path):
     # The JSON agrees with the library called directly (the CLI only renders).
     from cmcheck.model.winding import Winding
 
-    d = ChokeDesign(RingCore(61e-3, 35.6e-3, 12.7e-3), builtin_materials()["nizn-800"], Winding(8, Cable(5e-3)))
+    d = ChokeDesign(RingCore(61e-3, 35.6e-3, 12.7e-3), get_material("nizn-800"), Winding(8, Cable(5e-3)))
     p = predict(d, Band.single(1.8e6, 30e6))
     assert np.allclose(data["resistance_ohm"], p.curve.resistance)
     assert data["summary"]["min_resistance_ohm"] == pytest.approx(p.summary["min_resistance_ohm"])

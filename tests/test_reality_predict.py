@@ -9,7 +9,7 @@ import pytest
 
 from cmcheck.model.choke import ChokeDesign
 from cmcheck.model.cores import FactorCore, RingCore
-from cmcheck.model.materials import builtin_materials
+from cmcheck.model.materials import get_material, builtin_materials
 from cmcheck.model.winding import Winding, Wire
 
 
@@ -30,7 +30,7 @@ def test_nizn800_two_turns_on_small_ring(real_dir):
     # below hold the class against measurements it was not adjusted to.
     f, z = _reflection_z(real_dir / "ring-windings" / "ring-9.55x4.75x3.2mm-2turns.s1p")
     band = (f >= 1e6) & (f <= 30e6)
-    design = ChokeDesign(RingCore(9.55e-3, 4.75e-3, 3.2e-3), builtin_materials()["nizn-800"], Winding(2, Wire(0.5e-3)))
+    design = ChokeDesign(RingCore(9.55e-3, 4.75e-3, 3.2e-3), get_material("nizn-800"), Winding(2, Wire(0.5e-3)))
     zp = design.impedance(f[band])
     err = np.abs(np.abs(zp) / np.abs(z[band]) - 1)
     assert err.max() < 0.30
@@ -39,7 +39,7 @@ def test_nizn800_two_turns_on_small_ring(real_dir):
 def test_nizn800_low_frequency_inductance(real_dir):
     # The measurer's LCR reading for that ring: 1.31 µH at 10 kHz (SOURCES.md). The generic
     # class's µi ≈ 800 is representative, not exact (from memory): within 25 %.
-    design = ChokeDesign(RingCore(9.55e-3, 4.75e-3, 3.2e-3), builtin_materials()["nizn-800"], Winding(2, Wire(0.5e-3)))
+    design = ChokeDesign(RingCore(9.55e-3, 4.75e-3, 3.2e-3), get_material("nizn-800"), Winding(2, Wire(0.5e-3)))
     assert design.low_frequency_inductance() == pytest.approx(1.31e-6, rel=0.25)
 
 
@@ -52,7 +52,7 @@ def test_two_hole_core_by_factor(real_dir):
     keep = (f >= 3e6) & (f <= 30e6)
     f, z = f[keep], z[keep]
     order = np.argsort(f)  # this file has overlapping sweep segments
-    design = ChokeDesign(FactorCore(1 / 0.00154), builtin_materials()["nizn-800"], Winding(1, Wire(0.5e-3), cp=0.0))
+    design = ChokeDesign(FactorCore(1 / 0.00154), get_material("nizn-800"), Winding(1, Wire(0.5e-3), cp=0.0))
     ratio = np.abs(design.impedance(f[order])) / np.abs(z[order])
     assert (ratio > 0.65).all() and (ratio < 1.35).all()
 
@@ -72,7 +72,7 @@ def test_nizn800_against_independent_transformers(real_dir, name, core, turns, f
     # model jωL0µ (IEV 221-03-06) well below the self-resonance the secondary brings (~8 MHz).
     f, z = _reflection_z(real_dir / "efhw-transformers" / name)
     keep = (f >= f_lo) & (f <= f_hi)
-    design = ChokeDesign(core, builtin_materials()["nizn-800"], Winding(turns, Wire(0.3e-3, 0.02e-3), cp=0.0))
+    design = ChokeDesign(core, get_material("nizn-800"), Winding(turns, Wire(0.3e-3, 0.02e-3), cp=0.0))
     err = np.abs(np.abs(design.impedance(f[keep])) / np.abs(z[keep]) - 1)
     assert err.max() < tol
 
@@ -84,5 +84,5 @@ def test_cp_estimate_is_a_low_first_estimate(real_dir):
     # ignores the ferrite's permittivity and the leads, so it under-states this: the test pins
     # how far (a factor between 2 and 15), which the documentation states.
     measured_cp = 1 / ((2 * np.pi * 9.4e6) ** 2 * 55e-6)
-    design = ChokeDesign(RingCore(10e-3, 4e-3, 4e-3), builtin_materials()["nizn-125"], Winding(25, Wire(0.3e-3, 0.02e-3)))
+    design = ChokeDesign(RingCore(10e-3, 4e-3, 4e-3), get_material("nizn-125"), Winding(25, Wire(0.3e-3, 0.02e-3)))
     assert measured_cp / 15 < design.cp < measured_cp / 2

@@ -8,7 +8,7 @@ whose height is its length along the cable.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import lru_cache
 from importlib import resources
 
@@ -34,6 +34,9 @@ class RingSizes:
         Outside and inside diameter and the height (length, for a sleeve) of one piece [m].
     source : tuple of str
         Where each row came from (``built-in`` or the file name), for messages.
+    series : str
+        Which size series the table is: its ``# series:`` comment line, else the file name;
+        joined with `` + `` when tables are added. Lets a search say what it searched.
     """
 
     kind: tuple[str, ...]
@@ -41,6 +44,7 @@ class RingSizes:
     id: np.ndarray
     height: np.ndarray
     source: tuple[str, ...]
+    series: str = ""
 
     def __post_init__(self) -> None:
         for name in ("od", "id", "height"):
@@ -65,6 +69,7 @@ class RingSizes:
             np.concatenate([self.id, other.id]),
             np.concatenate([self.height, other.height]),
             self.source + other.source,
+            " + ".join(s for s in (self.series, other.series) if s),
         )
 
 
@@ -106,11 +111,24 @@ def _ring_sizes(table: Table, where: str, source: str | None = None) -> RingSize
     return RingSizes(tuple(kinds), np.array(od), np.array(idd), np.array(h), (source or where,) * len(kinds))
 
 
+def _series(comments: list[str], default: str) -> str:
+    # A table names its series in a "# series: ..." comment line.
+    for c in comments:
+        if c.lower().startswith("series:"):
+            return c.split(":", 1)[1].strip() or default
+    return default
+
+
 @lru_cache(maxsize=1)
 def builtin_ring_sizes() -> RingSizes:
-    """The built-in generic ring and sleeve sizes (``cmcheck/design/data/ring_sizes.csv``)."""
+    """The built-in size series of our own (``cmcheck/design/data/ring_sizes.csv``).
+
+    Outside diameters on the ISO 3 R10 series, ID and height at fixed ratios to OD; the file's
+    header comments say which and why. ``.series`` names it.
+    """
     text = resources.files("cmcheck").joinpath("design/data/ring_sizes.csv").read_text(encoding="utf-8")
-    return _parse_ring_sizes(text, "built-in ring sizes", source="built-in")
+    series = _series(parse_table(text, "built-in ring sizes", DimensionError).comments, "built-in")
+    return replace(_parse_ring_sizes(text, "built-in ring sizes", source="built-in"), series=series)
 
 
 def load_ring_sizes(path) -> RingSizes:
@@ -127,7 +145,8 @@ def load_ring_sizes(path) -> RingSizes:
         Naming the file and line when the table is missing, unreadable or impossible.
     """
     where = f"--sizes {path}"
-    return _ring_sizes(read_table(path, where, DimensionError), where)
+    table = read_table(path, where, DimensionError)
+    return replace(_ring_sizes(table, where), series=_series(table.comments, f"user sizes {path}"))
 
 
 def bend_radius(core_od, core_id, height, conductor_od):

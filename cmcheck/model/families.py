@@ -34,11 +34,14 @@ __all__ = [
 #: floating conductor (MnZn, metal powder); "unknown" for a user curve that does not say.
 ELECTRICAL_CLASSES = ("dielectric", "conductive", "unknown")
 
-# ISO 3:1973, Table 1: the rounded values of the basic series R10 and R20 in one decade.
+# ISO 3:1973, Table 1: the rounded values of the basic series R10, R20 and R40 in one decade.
 _BASIC_SERIES = {
     "R10": (1.00, 1.25, 1.60, 2.00, 2.50, 3.15, 4.00, 5.00, 6.30, 8.00),
     "R20": (1.00, 1.12, 1.25, 1.40, 1.60, 1.80, 2.00, 2.24, 2.50, 2.80,
             3.15, 3.55, 4.00, 4.50, 5.00, 5.60, 6.30, 7.10, 8.00, 9.00),
+    "R40": (1.00, 1.06, 1.12, 1.18, 1.25, 1.32, 1.40, 1.50, 1.60, 1.70, 1.80, 1.90, 2.00, 2.12,
+            2.24, 2.36, 2.50, 2.65, 2.80, 3.00, 3.15, 3.35, 3.55, 3.75, 4.00, 4.25, 4.50, 4.75,
+            5.00, 5.30, 5.60, 6.00, 6.30, 6.70, 7.10, 7.50, 8.00, 8.50, 9.00, 9.50),
 }
 # Derived series "R10/3": every third term of R10, taken from 1.00 (ISO 3:1973, clause 3.2);
 # about a doubling per step, used for the short listing grid.
@@ -53,7 +56,7 @@ def preferred_numbers(low, high, series: str = "R10") -> np.ndarray:
     low, high : float
         Range ends [any unit]; both positive, low ≤ high.
     series : str
-        ``"R10"``, ``"R20"`` or the derived ``"R10/3"``.
+        ``"R10"``, ``"R20"``, ``"R40"`` or the derived ``"R10/3"``.
 
     Returns
     -------
@@ -67,7 +70,7 @@ def preferred_numbers(low, high, series: str = "R10") -> np.ndarray:
     """
     key = str(series).upper()
     if key not in _BASIC_SERIES and key not in _DERIVED:
-        raise MaterialError(f"series must be one of R10, R20, R10/3, got {series!r}")
+        raise MaterialError(f"series must be one of R10, R20, R40, R10/3, got {series!r}")
     if not (np.isfinite(low) and np.isfinite(high) and 0 < low <= high):
         raise MaterialError(f"preferred-number range must be 0 < low ≤ high, got {low}–{high}")
     base, step = _DERIVED.get(key, (key, 1))
