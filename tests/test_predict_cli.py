@@ -105,13 +105,20 @@ def test_help_lists_commands_and_units():
 def test_materials_listing(run_cli, tmp_path):
     j = tmp_path / "m.json"
     code, stdout, _ = run_cli("materials", "--json", j)
-    assert code == 0 and "nizn-800" in stdout
+    # The listing shows the families with their µi ranges, electrical class and sources.
+    assert code == 0 and "nizn-<µi>" in stdout and "10–2000" in stdout and "dielectric" in stdout
+    assert "conductive" in stdout and "Snoek" in stdout and "Tsutaoka" in stdout
     data = json.loads(j.read_text())
+    assert {f["key"] for f in data["families"]} == {"nizn", "mnzn", "iron-powder"}
+    for f in data["families"]:
+        assert {"mu_i_range", "electrical_class", "sources", "provenance"} <= set(f)
     assert len(data["materials"]) >= 6
     for m in data["materials"]:
-        assert {"name", "description", "initial_permeability", "provenance"} <= set(m)
-    code, stdout, _ = run_cli("materials", "nizn-800", "--band", "1-100MHz")
-    assert code == 0 and "µ''" in stdout
+        assert {"name", "description", "initial_permeability", "provenance", "electrical_class"} <= set(m)
+    code, stdout, _ = run_cli("materials", "nizn-650", "--band", "1-100MHz")
+    assert code == 0 and "µ''" in stdout and "nizn-650" in stdout
+    code, _, err = run_cli("materials", "nizn-5")
+    assert code == 2 and "10–2000" in err and err.count("\n") == 1
 
 
 def test_window_only_with_core_factor(run_cli):

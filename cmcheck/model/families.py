@@ -254,4 +254,7 @@ def parse_member_name(name: str) -> tuple[Family, float] | None:
     fam = builtin_families().get(m.group(1))
     if fam is None:
         return None
-    return fam, fam.check(float(m.group(2)))
+    try:
+        return fam, fam.check(float(m.group(2)))
+    except MaterialError as exc:
+        raise MaterialError(f"material {name!r}: {exc}") from None
