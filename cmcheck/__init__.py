@@ -7,7 +7,8 @@ from .model.choke import ChokeDesign, Prediction, air_core_inductance, choke_imp
 from .model.cores import FactorCore, RingCore, effective_parameters, ring_core_factors, sleeve
 from .curve import ImpedanceCurve
 from .errors import CmcheckError, CmcheckWarning
-from .model.materials import Material, builtin_materials, get_material, load_material_csv
+from .model.families import Family, builtin_families
+from .model.materials import Material, builtin_materials, family_grid, family_material, get_material, load_material_csv
 from .units import Band, parse_band, parse_frequency, parse_length
 from .model.winding import Cable, Winding, Wire
 
@@ -20,6 +21,7 @@ __all__ = [
     "CmcheckError",
     "CmcheckWarning",
     "FactorCore",
+    "Family",
     "ImpedanceCurve",
     "Material",
     "Prediction",
@@ -27,9 +29,12 @@ __all__ = [
     "Winding",
     "Wire",
     "air_core_inductance",
+    "builtin_families",
     "builtin_materials",
     "choke_impedance",
     "effective_parameters",
+    "family_grid",
+    "family_material",
     "get_material",
     "load_material_csv",
     "parse_band",

@@ -28,6 +28,7 @@ from .dispersion import (
 from .families import ELECTRICAL_CLASSES, Family, builtin_families, parse_member_name
 
 __all__ = [
+    "LISTING_SERIES",
     "Debye",
     "DampedResonance",
     "Material",
