@@ -169,6 +169,8 @@ class Material:
             "electrical_class": self.electrical_class,
             "model": type(self.model).__name__,
         }
+        if "family_key" in self.extra:
+            d.update(family_key=self.extra["family_key"], mu_i=self.extra["mu_i"])
         if not isinstance(self.model, Tabulated):
             d["parameters"] = {k: getattr(self.model, k) for k in self.model.__dataclass_fields__}
         return d
