@@ -8,7 +8,15 @@ from .model.cores import FactorCore, RingCore, effective_parameters, ring_core_f
 from .curve import ImpedanceCurve
 from .errors import CmcheckError, CmcheckWarning
 from .model.families import Family, builtin_families
-from .model.materials import Material, builtin_materials, family_grid, family_material, get_material, load_material_csv
+from .model.materials import (
+    Material,
+    builtin_materials,
+    family_grid,
+    family_material,
+    get_material,
+    load_material_csv,
+    purchase_label,
+)
 from .units import Band, parse_band, parse_frequency, parse_length
 from .model.winding import Cable, Winding, Wire
 
@@ -41,6 +49,7 @@ __all__ = [
     "parse_frequency",
     "parse_length",
     "predict",
+    "purchase_label",
     "ring_core_factors",
     "sleeve",
     "winding_impedance",

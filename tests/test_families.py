@@ -14,6 +14,7 @@ from cmcheck.model.materials import (
     family_material,
     get_material,
     load_material_csv,
+    purchase_label,
 )
 
 FAMILIES = builtin_families()
@@ -142,6 +143,8 @@ def test_family_grid_for_sizing_and_purchase_span():
     assert fam.span(650, "R10") == (630, 800)
     assert fam.purchase_label(800) == f"{fam.name}, µi ≈ 630–1000"
     assert fam.span(hi, "R10")[1] == hi  # the top of the range has no neighbour above
+    assert purchase_label(get_material("nizn-800")) == f"{fam.name}, µi ≈ 630–1000"
+    assert purchase_label(get_material("nizn-800"), "R20") == f"{fam.name}, µi ≈ 710–900"
 
 
 def test_electrical_class():
@@ -163,6 +166,7 @@ def test_user_csv_declares_its_class(tmp_path):
     p.write_text("# invented demo curve\n# class: conductive\n" + body)
     m = load_material_csv(p)
     assert m.electrical_class == "conductive" and m.description == "invented demo curve"
+    assert purchase_label(m) == "m"  # a user curve is bought by its own name
     p.write_text(body)
     assert load_material_csv(p).electrical_class == "unknown"
     p.write_text("# class: metallic\n" + body)

@@ -42,6 +42,7 @@ __all__ = [
     "family_material",
     "get_material",
     "load_material_csv",
+    "purchase_label",
     "save_material_csv",
     "two_component_permeability",
 ]
@@ -214,6 +215,18 @@ def family_grid(family: Family | str, series: str = "R10") -> list[Material]:
     """
     fam = builtin_families()[family] if isinstance(family, str) else family
     return [family_material(fam, mu) for mu in fam.grid(series)]
+
+
+def purchase_label(material: Material, series: str = "R10") -> str:
+    """What to buy for a design using ``material``, e.g. ``NiZn ferrite, µi ≈ 630–1000``.
+
+    For a family member: the family and the span between its neighbours on the ISO 3 grid
+    the search used (``series``), since a search on that grid cannot tell µi apart more finely.
+    For any other material (a user curve): its name.
+    """
+    key = material.extra.get("family_key")
+    fam = builtin_families().get(key) if key else None
+    return fam.purchase_label(material.extra["mu_i"], series) if fam else material.name
 
 
 def builtin_materials() -> dict[str, Material]:
