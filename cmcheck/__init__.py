@@ -8,7 +8,16 @@ from .model.cores import Core, FactorCore, RingCore, effective_parameters, ring_
 from .model.two_hole import TwoHoleCore
 from .curve import ImpedanceCurve
 from .errors import CmcheckError, CmcheckWarning
-from .model.materials import Material, builtin_materials, get_material, load_material_csv
+from .model.families import Family, builtin_families
+from .model.materials import (
+    Material,
+    builtin_materials,
+    family_grid,
+    family_material,
+    get_material,
+    load_material_csv,
+    purchase_label,
+)
 from .units import Band, parse_band, parse_frequency, parse_length
 from .model.conductors import Cable, Conductor, Wire
 from .model.winding import Winding
@@ -24,6 +33,7 @@ __all__ = [
     "Conductor",
     "Core",
     "FactorCore",
+    "Family",
     "ImpedanceCurve",
     "Material",
     "Prediction",
@@ -32,15 +42,19 @@ __all__ = [
     "Winding",
     "Wire",
     "air_core_inductance",
+    "builtin_families",
     "builtin_materials",
     "choke_impedance",
     "effective_parameters",
+    "family_grid",
+    "family_material",
     "get_material",
     "load_material_csv",
     "parse_band",
     "parse_frequency",
     "parse_length",
     "predict",
+    "purchase_label",
     "ring_core_factors",
     "sleeve",
     "winding_impedance",

@@ -16,7 +16,7 @@ from cmcheck.model.choke import (
     winding_impedance,
 )
 from cmcheck.model.cores import RingCore
-from cmcheck.model.materials import Debye, Material, builtin_materials, load_material_csv
+from cmcheck.model.materials import get_material, Debye, Material, builtin_materials, load_material_csv
 from cmcheck.reporting.files import write_touchstone
 from cmcheck.units import Band
 from cmcheck.model.winding import Cable, Winding, Wire
@@ -63,7 +63,7 @@ def test_flat_csv_material_gives_jwL0mu(tmp_path):
 @settings(max_examples=10)
 def test_stacking_multiplies_l0(k):
     # IEC 60205: stacking k identical rings divides C1 by k, so L0 = µ0N²/C1 scales by k.
-    mat = builtin_materials()["nizn-800"]
+    mat = get_material("nizn-800")
     one = ChokeDesign(RingCore(25.4e-3, 15.5e-3, 6.35e-3), mat, Winding(5, Wire(0.5e-3)))
     many = ChokeDesign(RingCore(25.4e-3, 15.5e-3, 6.35e-3, k), mat, Winding(5, Wire(0.5e-3)))
     assert many.l0 == pytest.approx(k * one.l0, rel=1e-12)
@@ -91,7 +91,7 @@ def test_passive_everywhere():
 
 def test_vectorised_candidates_match_single():
     # Broadcasting over (candidates, frequencies) gives the same as one design at a time.
-    mat = builtin_materials()["nizn-800"]
+    mat = get_material("nizn-800")
     f = np.geomspace(1e6, 3e7, 50)
     turns = np.array([2, 5, 9])
     cores = [RingCore(61e-3, 35.6e-3, 12.7e-3)] * 3
@@ -108,7 +108,7 @@ def test_touchstone_export_roundtrip(tmp_path):
     # (Pozar, Microwave Engineering, 4th ed., Table 4.2) returns the prediction.
     from skrf.io.touchstone import Touchstone
 
-    mat = builtin_materials()["nizn-800"]
+    mat = get_material("nizn-800")
     design = ChokeDesign(RingCore(61e-3, 35.6e-3, 12.7e-3), mat, Winding(8, Cable(5e-3)))
     pred = predict(design, Band.single(1.8e6, 30e6), 101)
     path = tmp_path / "choke.s2p"
@@ -128,7 +128,7 @@ def test_to_network_matches_skrf_circuit():
     import skrf
     import skrf.media
 
-    mat = builtin_materials()["nizn-800"]
+    mat = get_material("nizn-800")
     design = ChokeDesign(RingCore(25e-3, 15e-3, 10e-3), mat, Winding(4, Wire(0.5e-3)))
     f = np.geomspace(1e6, 1e8, 21)
     curve = design.curve(f)
@@ -139,7 +139,7 @@ def test_to_network_matches_skrf_circuit():
 
 
 def test_predict_summary_fields():
-    mat = builtin_materials()["nizn-800"]
+    mat = get_material("nizn-800")
     design = ChokeDesign(RingCore(61e-3, 35.6e-3, 12.7e-3), mat, Winding(8, Cable(5e-3)))
     band = Band(((1.8e6, 2e6), (28e6, 29.7e6)))
     p = predict(design, band, 201)

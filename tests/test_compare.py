@@ -12,7 +12,7 @@ from cmcheck.model.choke import ChokeDesign, predict
 from cmcheck.design.compare import compare_materials, current_ratio, worst_case_reduction
 from cmcheck.model.cores import RingCore
 from cmcheck.errors import DesignError
-from cmcheck.model.materials import Material, Tabulated, builtin_materials
+from cmcheck.model.materials import get_material, Material, Tabulated, builtin_materials
 from cmcheck.units import Band
 from cmcheck.model.winding import MU0, Cable, Winding
 
@@ -110,7 +110,7 @@ def test_compare_on_flat_materials_matches_closed_form():
 
 
 def test_compare_refuses_duplicates():
-    m = builtin_materials()["nizn-800"]
+    m = get_material("nizn-800")
     with pytest.raises(DesignError, match="more than once"):
         compare_materials([m, m], RingCore(61e-3, 35.6e-3, 12.7e-3), Winding(8, Cable(5e-3)), Band.single(3e6, 30e6))
 
@@ -132,7 +132,7 @@ def test_compare_cli_json_plot_and_ranking(run_cli, tmp_path):
     wc = [m["worst_case_reduction_db"] for m in data["materials"]]
     assert wc == sorted(wc, reverse=True)
     # The CLI only renders: its numbers are the library's predict on the same design.
-    d = ChokeDesign(RingCore(61e-3, 35.6e-3, 12.7e-3), builtin_materials()["nizn-250"], Winding(8, Cable(5e-3)))
+    d = ChokeDesign(RingCore(61e-3, 35.6e-3, 12.7e-3), get_material("nizn-250"), Winding(8, Cable(5e-3)))
     p = predict(d, Band.single(3.5e6, 30e6))
     row = next(m for m in data["materials"] if m["name"] == "nizn-250")
     assert row["min_resistance_ohm"] == pytest.approx(p.summary["min_resistance_ohm"])

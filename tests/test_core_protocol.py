@@ -15,12 +15,12 @@ from cmcheck.errors import CmcheckWarning, DimensionError
 from cmcheck.model.choke import ChokeDesign, predict
 from cmcheck.model.conductors import Cable, Conductor, Wire
 from cmcheck.model.cores import Core, FactorCore, RingCore, sleeve
-from cmcheck.model.materials import builtin_materials
+from cmcheck.model.materials import builtin_materials, get_material
 from cmcheck.model.two_hole import TwoHoleCore
 from cmcheck.model.winding import Winding
 from cmcheck.units import Band
 
-NIZN = builtin_materials()["nizn-800"]
+NIZN = get_material("nizn-800")
 # An invented two-hole block for the tests: 14 wide, 8 thick, 12 long, 3.5 mm holes 6 mm apart.
 W, T, L, D, S = 14e-3, 8e-3, 12e-3, 3.5e-3, 6e-3
 

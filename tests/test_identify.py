@@ -15,7 +15,7 @@ from cmcheck.identify.circuit import fit_circuit, foster_impedance, quick_estima
 from cmcheck.measurement.methods import extract
 from cmcheck.measurement.touchstone import read_touchstone
 from cmcheck.measurement.validity import Accuracy
-from cmcheck.model.materials import builtin_materials, load_material_csv
+from cmcheck.model.materials import builtin_materials, family_grid, get_material, load_material_csv
 
 MU0 = 4e-7 * math.pi  # close enough to the 2019 SI value for a 5 % test
 # 9.55 × 4.75 × 3.2 mm ring, IEC 60205 C1 = 2π/(h·ln(OD/ID)), computed here, not by cmcheck.
@@ -102,8 +102,9 @@ def test_naive_inversion_and_magnitude_peak_fail_where_identification_holds(synt
 
 
 def test_family_fit_and_nearest_material(synthetic):
-    mats = builtin_materials()
-    fams = [FamilyConstants.from_material(mats[k]) for k in ("nizn-800", "mnzn-1500", "iron-powder-35")]
+    # Candidates: each family on the ISO 3 R10 grid (cmcheck.model.materials.family_grid).
+    mats = {m.name: m for k in ("nizn", "mnzn", "iron-powder") for m in family_grid(k, "R10")}
+    fams = [FamilyConstants.from_material(get_material(k)) for k in ("nizn-800", "mnzn-1500", "iron-powder-35")]
     r = _identify(synthetic, families=fams, candidates=list(mats.values()))
     # The synthetic material is the NiZn family member of µi = 1 + 560 + 210 = 771.
     assert r.model.form == "family:NiZn ferrite"

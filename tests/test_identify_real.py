@@ -15,7 +15,7 @@ from cmcheck.identify import FamilyConstants, identify
 from cmcheck.identify.circuit import fit_circuit
 from cmcheck.measurement.methods import extract
 from cmcheck.measurement.touchstone import read_touchstone
-from cmcheck.model.materials import builtin_materials
+from cmcheck.model.materials import builtin_materials, family_grid, get_material
 
 
 def c1_ring(od, id_, h):
@@ -72,8 +72,9 @@ def test_two_fixtures_give_the_same_mu(real_dir):
 
 
 def test_small_nizn_ring_is_named_nizn_800(real_dir):
-    mats = builtin_materials()
-    fams = [FamilyConstants.from_material(mats[k]) for k in ("nizn-800", "mnzn-1500", "iron-powder-35")]
+    # Candidates: each family on the ISO 3 R10 grid (cmcheck.model.materials.family_grid).
+    mats = {m.name: m for k in ("nizn", "mnzn", "iron-powder") for m in family_grid(k, "R10")}
+    fams = [FamilyConstants.from_material(get_material(k)) for k in ("nizn-800", "mnzn-1500", "iron-powder-35")]
     _, r = _run(real_dir, "ring-9.55x4.75x3.2mm-2turns.s1p", (9.55e-3, 4.75e-3, 3.2e-3), 2,
                 families=fams, candidates=list(mats.values()))
     i = int(np.argmin(np.abs(r.frequency_hz - 1e6)))

@@ -14,7 +14,7 @@ import pytest
 
 from cmcheck.model.choke import ChokeDesign, predict
 from cmcheck.model.cores import RingCore
-from cmcheck.model.materials import builtin_materials
+from cmcheck.model.materials import get_material, builtin_materials
 from cmcheck.units import Band
 from cmcheck.model.winding import Cable
 
@@ -34,7 +34,7 @@ def test_predict_table_and_outputs(run_cli, tmp_path):
     # The JSON agrees with the library called directly (the CLI only renders).
     from cmcheck.model.winding import Winding
 
-    d = ChokeDesign(RingCore(61e-3, 35.6e-3, 12.7e-3), builtin_materials()["nizn-800"], Winding(8, Cable(5e-3)))
+    d = ChokeDesign(RingCore(61e-3, 35.6e-3, 12.7e-3), get_material("nizn-800"), Winding(8, Cable(5e-3)))
     p = predict(d, Band.single(1.8e6, 30e6))
     assert np.allclose(data["resistance_ohm"], p.curve.resistance)
     assert data["summary"]["min_resistance_ohm"] == pytest.approx(p.summary["min_resistance_ohm"])
@@ -105,13 +105,23 @@ def test_help_lists_commands_and_units():
 def test_materials_listing(run_cli, tmp_path):
     j = tmp_path / "m.json"
     code, stdout, _ = run_cli("materials", "--json", j)
-    assert code == 0 and "nizn-800" in stdout
+    # The listing shows the families with their µi ranges, electrical class and sources.
+    from cmcheck.model.families import builtin_families
+
+    nizn_range = "{:g}–{:g}".format(*builtin_families()["nizn"].mu_range)
+    assert code == 0 and "nizn-<µi>" in stdout and nizn_range in stdout and "dielectric" in stdout
+    assert "conductive" in stdout and "Snoek" in stdout and "Tsutaoka" in stdout
     data = json.loads(j.read_text())
+    assert {f["key"] for f in data["families"]} == {"nizn", "mnzn", "iron-powder"}
+    for f in data["families"]:
+        assert {"mu_i_range", "electrical_class", "sources", "provenance"} <= set(f)
     assert len(data["materials"]) >= 6
     for m in data["materials"]:
-        assert {"name", "description", "initial_permeability", "provenance"} <= set(m)
-    code, stdout, _ = run_cli("materials", "nizn-800", "--band", "1-100MHz")
-    assert code == 0 and "µ''" in stdout
+        assert {"name", "description", "initial_permeability", "provenance", "electrical_class"} <= set(m)
+    code, stdout, _ = run_cli("materials", "nizn-650", "--band", "1-100MHz")
+    assert code == 0 and "µ''" in stdout and "nizn-650" in stdout
+    code, _, err = run_cli("materials", "nizn-5")
+    assert code == 2 and nizn_range in err and err.count("\n") == 1
 
 
 def test_window_only_with_core_factor(run_cli):

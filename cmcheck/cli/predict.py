@@ -139,28 +139,50 @@ def materials(
     points: Annotated[int, typer.Option("--points", help="Rows of the µ table when a material is named.", min=2)] = 13,
     json_out: o.JsonOut = None,
 ) -> None:
-    """List the built-in generic material classes, or show one material's µ' and µ''.
+    """List the built-in material families, or show one material's µ' and µ''.
 
-    Built-in materials are generic classes with representative values from memory, not any
-    maker's data: load your datasheet curve (CSV frequency_hz,mu_prime,mu_double_prime) for
-    design work.
+    Built-in materials are families (NiZn, MnZn, iron powder) parametrised by initial
+    permeability: any member in a family's range is a material, e.g. nizn-650. Their constants
+    are representative, from memory, not any maker's data: load your datasheet curve (CSV
+    frequency_hz,mu_prime,mu_double_prime) for design work.
     """
+    from ..model.families import builtin_families
+    from ..model.materials import LISTING_SERIES
+
     check_outputs([json_out], [name] if name and Path(name).is_file() else [])
     if name is None:
+        fams = list(builtin_families().values())
         mats = list(builtin_materials().values())
-        t = table("name", "family", "µi", "suits")
-        for m in mats:
-            t.add_row(m.name, m.family, f"{m.initial_permeability:.0f}", m.description)
+        t = table("family", "name", "µi range", "electrical", "suits")
+        for fam in fams:
+            lo, hi = fam.mu_range
+            elec = fam.electrical_class + (f", εr ≈ {fam.relative_permittivity:g}" if fam.relative_permittivity else "")
+            t.add_row(fam.name, f"{fam.key}-<µi>", f"{lo:g}–{hi:g}", elec, fam.description)
         console.print(t)
-        print_notes(["Representative values from memory (generic classes); load your datasheet curve for design work."])
+        console.print(f"Listed members (ISO 3 series {LISTING_SERIES}): " + ", ".join(m.name for m in mats))
+        for fam in fams:
+            console.print(f"{fam.name}: {fam.provenance}")
+            for src in fam.sources:
+                console.print(f"  source: {src}")
+        print_notes([
+            "Any µi within a family's range is a material (e.g. nizn-650); frequencies follow Snoek's law.",
+            "Representative values from memory; load your datasheet curve for design work.",
+        ])
         if json_out:
-            write_json(json_out, {"materials": [m.to_dict() for m in mats]})
+            fam_rows = [
+                {"key": f.key, "family": f.name, "mu_i_range": list(f.mu_range), "electrical_class": f.electrical_class,
+                 "relative_permittivity": f.relative_permittivity, "form": f.form, "description": f.description,
+                 "provenance": f.provenance, "sources": list(f.sources)}
+                for f in fams
+            ]
+            write_json(json_out, {"families": fam_rows, "listing_series": LISTING_SERIES,
+                                  "materials": [m.to_dict() for m in mats]})
         return
     m = get_material(name)
     b = o.band_from_option(band)
     f = np.geomspace(b.low, b.high, points)
     mu = m.permeability(f)
-    console.print(f"[bold]{m.name}[/bold] ({m.family}): {m.description}")
+    console.print(f"[bold]{m.name}[/bold] ({m.family}, {m.electrical_class}): {m.description}")
     console.print(f"  {m.provenance}")
     t = table("frequency", "µ'", "µ''", "µ''/µ'")
     for fi, mi in zip(f, mu):

@@ -18,7 +18,7 @@ the other kinds' cells empty. ``kind`` may be left out, meaning ring.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import lru_cache
 from importlib import resources
 from typing import Callable, Sequence
@@ -71,12 +71,16 @@ class CoreSizes:
         Short dimension text per row, e.g. ``ring 61 × 35.55 × 12.7 mm``.
     source : tuple of str
         Where each row came from (``built-in`` or the file name), for messages.
+    series : str
+        Which size series the table is: its ``# series:`` comment line, else the file name;
+        joined with `` + `` when tables are added. Lets a search say what it searched.
     """
 
     kind: tuple[str, ...]
     cores: tuple[Core, ...]
     labels: tuple[str, ...]
     source: tuple[str, ...]
+    series: str = ""
 
     def __post_init__(self) -> None:
         for name in ("kind", "cores", "labels", "source"):
@@ -98,11 +102,12 @@ class CoreSizes:
 
     def subset(self, rows: Sequence[int]) -> "CoreSizes":
         """The rows ``rows``, in that order."""
-        return CoreSizes(*(tuple(getattr(self, n)[i] for i in rows) for n in ("kind", "cores", "labels", "source")))
+        return CoreSizes(*(tuple(getattr(self, n)[i] for i in rows) for n in ("kind", "cores", "labels", "source")),
+                         series=self.series)
 
     def __add__(self, other: "CoreSizes") -> "CoreSizes":
         return CoreSizes(self.kind + other.kind, self.cores + other.cores, self.labels + other.labels,
-                         self.source + other.source)
+                         self.source + other.source, " + ".join(s for s in (self.series, other.series) if s))
 
 
 def RingSizes(kind, od, id, height, source) -> CoreSizes:  # noqa: N802 - the former class name, kept
@@ -159,11 +164,24 @@ def _core_sizes(table: Table, where: str, source: str | None = None) -> CoreSize
     return CoreSizes(tuple(kinds), tuple(cores), tuple(labels), (source or where,) * len(kinds))
 
 
+def _series(comments: list[str], default: str) -> str:
+    # A table names its series in a "# series: ..." comment line.
+    for c in comments:
+        if c.lower().startswith("series:"):
+            return c.split(":", 1)[1].strip() or default
+    return default
+
+
 @lru_cache(maxsize=1)
 def builtin_ring_sizes() -> CoreSizes:
-    """The built-in generic ring and sleeve sizes (``cmcheck/design/data/ring_sizes.csv``)."""
+    """The built-in size series of our own (``cmcheck/design/data/ring_sizes.csv``).
+
+    Outside diameters on the ISO 3 R10 series, ID and height at fixed ratios to OD; the file's
+    header comments say which and why. ``.series`` names it.
+    """
     text = resources.files("cmcheck").joinpath("design/data/ring_sizes.csv").read_text(encoding="utf-8")
-    return _parse_ring_sizes(text, "built-in ring sizes", source="built-in")
+    table = parse_table(text, "built-in ring sizes", DimensionError)
+    return replace(_core_sizes(table, "built-in ring sizes", "built-in"), series=_series(table.comments, "built-in"))
 
 
 def load_ring_sizes(path) -> CoreSizes:
@@ -184,4 +202,5 @@ def load_ring_sizes(path) -> CoreSizes:
         Naming the file and line when the table is missing, unreadable or impossible.
     """
     where = f"--sizes {path}"
-    return _core_sizes(read_table(path, where, DimensionError), where)
+    table = read_table(path, where, DimensionError)
+    return replace(_core_sizes(table, where), series=_series(table.comments, f"user sizes {path}"))

@@ -1,36 +1,48 @@
 """Complex permeability µ(f) = µ' − jµ'' of core materials.
 
-Three sources: a user's datasheet curve (CSV), the published dispersion forms, and the
-built-in table of *generic* material classes in ``data/materials.json`` (representative
-values from memory, not any maker's data). Convention: e^{jωt}, so a passive material has
-µ'' ≥ 0 and the returned complex number is µ' − jµ''.
+Two sources: a user's datasheet curve (CSV), and the built-in material *families* (NiZn,
+MnZn, iron powder; see :mod:`cmcheck.model.families`) of which any member ``nizn-650`` is a
+material. Convention: e^{jωt}, so a passive material has µ'' ≥ 0 and the returned complex
+number is µ' − jµ''.
 """
 
 from __future__ import annotations
 
-import json
+import re
 from dataclasses import dataclass, field
-from functools import lru_cache
-from importlib import resources
 from pathlib import Path
-from typing import Protocol
 
 import numpy as np
 
 from ..errors import MaterialError
 from ..tables import read_table
+from .dispersion import (
+    DampedResonance,
+    Debye,
+    PermeabilityModel,
+    TwoComponent,
+    damped_resonance_permeability,
+    debye_permeability,
+    two_component_permeability,
+)
+from .families import ELECTRICAL_CLASSES, Family, builtin_families, parse_member_name
 
 __all__ = [
+    "LISTING_SERIES",
     "Debye",
     "DampedResonance",
     "Material",
     "Tabulated",
     "TwoComponent",
+    "builtin_families",
     "builtin_materials",
     "damped_resonance_permeability",
     "debye_permeability",
+    "family_grid",
+    "family_material",
     "get_material",
     "load_material_csv",
+    "purchase_label",
     "save_material_csv",
     "two_component_permeability",
 ]
@@ -38,143 +50,6 @@ __all__ = [
 #: How far beyond a table's ends (as a frequency ratio) a tabulated material is still used,
 #: holding the end value; further out is refused rather than guessed.
 EXTRAPOLATION_RATIO = 1.1
-
-
-def debye_permeability(frequency_hz, mu_i, f_r):
-    """Debye relaxation: µ = 1 + (µi − 1)/(1 + j f/fr).
-
-    Parameters
-    ----------
-    frequency_hz : array_like
-        Frequency [Hz].
-    mu_i : float or array_like
-        Initial (low-frequency) relative permeability [dimensionless].
-    f_r : float or array_like
-        Relaxation frequency, where µ'' peaks [Hz].
-
-    Returns
-    -------
-    numpy.ndarray of complex
-        µ' − jµ'' [dimensionless].
-
-    References
-    ----------
-    P. Debye, *Polar Molecules*, 1929, relaxation form; applied to ferrite spin relaxation in
-    e.g. T. Tsutaoka, J. Appl. Phys. 93(5), 2789 (2003), eq. (2) (spin-rotation term).
-    """
-    f = np.asarray(frequency_hz, dtype=float)
-    mu_i = np.asarray(mu_i, dtype=float)
-    f_r = np.asarray(f_r, dtype=float)
-    return 1.0 + (mu_i - 1.0) / (1.0 + 1j * f / f_r)
-
-
-def damped_resonance_permeability(frequency_hz, mu_i, f_r, damping_hz):
-    """Damped (Lorentzian) resonance: µ = 1 + (µi − 1)fr²/(fr² − f² + j f Δf).
-
-    Parameters
-    ----------
-    frequency_hz : array_like
-        Frequency [Hz].
-    mu_i : float or array_like
-        Initial relative permeability [dimensionless].
-    f_r : float or array_like
-        Resonance frequency [Hz].
-    damping_hz : float or array_like
-        Damping Δf [Hz]; Δf > 2·fr is over-damped (relaxation-like).
-
-    Returns
-    -------
-    numpy.ndarray of complex
-        µ' − jµ'' [dimensionless].
-
-    References
-    ----------
-    T. Tsutaoka, "Frequency dispersion of complex permeability in Mn–Zn and Ni–Zn spinel
-    ferrites and their composite materials", J. Appl. Phys. 93(5), 2789 (2003), eq. (1)
-    (domain-wall resonance term).
-    """
-    f = np.asarray(frequency_hz, dtype=float)
-    f_r = np.asarray(f_r, dtype=float)
-    return 1.0 + (np.asarray(mu_i, dtype=float) - 1.0) * f_r**2 / (f_r**2 - f**2 + 1j * f * np.asarray(damping_hz, dtype=float))
-
-
-def two_component_permeability(frequency_hz, k_dw, f_dw, beta_hz, k_s, f_s):
-    """Domain-wall resonance plus spin-rotation relaxation.
-
-    µ = 1 + K_dw·f_dw²/(f_dw² − f² + j f β) + K_s/(1 + j f/f_s)
-
-    Parameters
-    ----------
-    frequency_hz : array_like
-        Frequency [Hz].
-    k_dw : float or array_like
-        Domain-wall static susceptibility [dimensionless].
-    f_dw : float or array_like
-        Domain-wall resonance frequency [Hz].
-    beta_hz : float or array_like
-        Domain-wall damping [Hz].
-    k_s : float or array_like
-        Spin static susceptibility [dimensionless].
-    f_s : float or array_like
-        Spin relaxation frequency [Hz].
-
-    Returns
-    -------
-    numpy.ndarray of complex
-        µ' − jµ'' [dimensionless]; the initial permeability is 1 + K_dw + K_s.
-
-    References
-    ----------
-    T. Tsutaoka, J. Appl. Phys. 93(5), 2789 (2003), eqs. (1)–(3).
-    """
-    f = np.asarray(frequency_hz, dtype=float)
-    f_dw = np.asarray(f_dw, dtype=float)
-    dw = np.asarray(k_dw, dtype=float) * f_dw**2 / (f_dw**2 - f**2 + 1j * f * np.asarray(beta_hz, dtype=float))
-    spin = np.asarray(k_s, dtype=float) / (1.0 + 1j * f / np.asarray(f_s, dtype=float))
-    return 1.0 + dw + spin
-
-
-class PermeabilityModel(Protocol):
-    """Anything that gives µ' − jµ'' at frequencies [Hz]."""
-
-    def permeability(self, frequency_hz) -> np.ndarray: ...
-
-
-@dataclass(frozen=True)
-class Debye:
-    """Debye relaxation model; see :func:`debye_permeability`."""
-
-    mu_i: float
-    f_r: float
-
-    def permeability(self, frequency_hz):
-        return debye_permeability(frequency_hz, self.mu_i, self.f_r)
-
-
-@dataclass(frozen=True)
-class DampedResonance:
-    """Damped resonance model; see :func:`damped_resonance_permeability`."""
-
-    mu_i: float
-    f_r: float
-    damping_hz: float
-
-    def permeability(self, frequency_hz):
-        return damped_resonance_permeability(frequency_hz, self.mu_i, self.f_r, self.damping_hz)
-
-
-@dataclass(frozen=True)
-class TwoComponent:
-    """Domain-wall + spin-rotation model; see :func:`two_component_permeability`."""
-
-    k_dw: float
-    f_dw: float
-    beta_hz: float
-    k_s: float
-    f_s: float
-
-    def permeability(self, frequency_hz):
-        return two_component_permeability(frequency_hz, self.k_dw, self.f_dw, self.beta_hz, self.k_s, self.f_s)
 
 
 @dataclass(frozen=True, eq=False)
@@ -248,6 +123,11 @@ class Material:
         One line: where this material suits.
     provenance : str
         Where the numbers come from and what they were checked against.
+    electrical_class : str
+        ``"dielectric"`` (NiZn), ``"conductive"`` (MnZn, metal powder) or ``"unknown"``: what
+        the core is to the winding's electric field, for the stray-capacitance model.
+    extra : dict
+        Anything else; family members carry ``family_key`` and ``mu_i``.
     """
 
     name: str
@@ -256,6 +136,13 @@ class Material:
     description: str = ""
     provenance: str = ""
     extra: dict = field(default_factory=dict)
+    electrical_class: str = "unknown"
+
+    def __post_init__(self) -> None:
+        if self.electrical_class not in ELECTRICAL_CLASSES:
+            raise MaterialError(
+                f"{self.name}: electrical_class must be one of {', '.join(ELECTRICAL_CLASSES)}, got {self.electrical_class!r}"
+            )
 
     def permeability(self, frequency_hz) -> np.ndarray:
         """µ' − jµ'' at ``frequency_hz`` [Hz]."""
@@ -280,41 +167,85 @@ class Material:
             "description": self.description,
             "provenance": self.provenance,
             "initial_permeability": round(self.initial_permeability, 3),
+            "electrical_class": self.electrical_class,
             "model": type(self.model).__name__,
         }
+        if "family_key" in self.extra:
+            d.update(family_key=self.extra["family_key"], mu_i=self.extra["mu_i"])
         if not isinstance(self.model, Tabulated):
             d["parameters"] = {k: getattr(self.model, k) for k in self.model.__dataclass_fields__}
         return d
 
 
-_MODELS = {"debye": Debye, "damped_resonance": DampedResonance, "two_component": TwoComponent}
+#: The ISO 3 series of the short listing grid that ``builtin_materials`` returns.
+LISTING_SERIES = "R10/3"
 
 
-@lru_cache(maxsize=1)
-def _builtin_table() -> tuple[Material, ...]:
-    text = resources.files("cmcheck").joinpath("model/data/materials.json").read_text(encoding="utf-8")
-    out = []
-    for entry in json.loads(text)["materials"]:
-        model = _MODELS[entry["model"]](**entry["parameters"])
-        out.append(
-            Material(
-                name=entry["name"],
-                model=model,
-                family=entry["family"],
-                description=entry["description"],
-                provenance=entry["provenance"],
-            )
-        )
-    return tuple(out)
+def family_material(family: Family | str, mu_i: float) -> Material:
+    """The member of ``family`` (a :class:`Family` or its key, e.g. ``"nizn"``) at µi = ``mu_i``.
+
+    Raises
+    ------
+    MaterialError
+        Unknown family, or ``mu_i`` outside the family's range (the message names the range).
+    """
+    if isinstance(family, str):
+        fams = builtin_families()
+        if family.strip().lower() not in fams:
+            raise MaterialError(f"unknown material family {family!r}: use one of {', '.join(fams)}")
+        family = fams[family.strip().lower()]
+    mu = family.check(mu_i)
+    lo, hi = family.mu_range
+    return Material(
+        name=family.member_name(mu),
+        model=family.model(mu),
+        family=family.name,
+        description=f"{family.name} with µi = {mu:g} ({lo:g}–{hi:g} in the family): {family.description}",
+        provenance=family.provenance,
+        extra={"family_key": family.key, "mu_i": mu},
+        electrical_class=family.electrical_class,
+    )
+
+
+def family_grid(family: Family | str, series: str = "R10") -> list[Material]:
+    """Members of a family at the ISO 3 preferred numbers (``"R10"``, ``"R20"``, ``"R10/3"``) in its range.
+
+    For the sizing search: search the grid, then name what to buy with
+    :meth:`Family.purchase_label` (the span between the chosen member's grid neighbours).
+    """
+    fam = builtin_families()[family] if isinstance(family, str) else family
+    return [family_material(fam, mu) for mu in fam.grid(series)]
+
+
+def purchase_label(material: Material, series: str = "R10") -> str:
+    """What to buy for a design using ``material``, e.g. ``NiZn ferrite, µi ≈ 630–1000``.
+
+    For a family member: the family and the span between its neighbours on the ISO 3 grid
+    the search used (``series``), since a search on that grid cannot tell µi apart more finely.
+    For any other material (a user curve): its name.
+    """
+    key = material.extra.get("family_key")
+    fam = builtin_families().get(key) if key else None
+    return fam.purchase_label(material.extra["mu_i"], series) if fam else material.name
 
 
 def builtin_materials() -> dict[str, Material]:
-    """The built-in generic material classes, by name."""
-    return {m.name: m for m in _builtin_table()}
+    """A short representative grid of every built-in family (ISO 3 series R10/3), by name.
+
+    The families themselves are :func:`builtin_families`; :func:`get_material` accepts any
+    member within a family's range (``nizn-650``), not only these.
+    """
+    return {m.name: m for fam in builtin_families().values() for m in family_grid(fam, LISTING_SERIES)}
+
+
+_CLASS_COMMENT = re.compile(r"^class\s*[:=]\s*(\S+)\s*$", re.IGNORECASE)
 
 
 def load_material_csv(path) -> Material:
     """Read a material curve: header ``frequency_hz,mu_prime,mu_double_prime``, ``#`` comments.
+
+    A comment line ``# class: conductive`` (or ``dielectric``) declares the core's electrical
+    class for the stray-capacitance model; without it the class is ``"unknown"``.
 
     Parameters
     ----------
@@ -342,7 +273,15 @@ def load_material_csv(path) -> Material:
     arr = arr[np.argsort(arr[:, 0], kind="stable")]
     if arr.shape[0] and np.any(np.diff(arr[:, 0]) == 0):
         raise MaterialError(f"{where}: the same frequency appears twice")
-    comments = table.comments
+    electrical_class, comments = "unknown", []
+    for c in table.comments:
+        m = _CLASS_COMMENT.match(c)
+        if m is None:
+            comments.append(c)
+        elif m.group(1).lower() in ("dielectric", "conductive"):
+            electrical_class = m.group(1).lower()
+        else:
+            raise MaterialError(f"{where}: '# class:' must be dielectric or conductive, got {m.group(1)!r}")
     model = Tabulated(arr[:, 0], arr[:, 1], arr[:, 2], source=f"material file {path}")
     return Material(
         name=p.stem,
@@ -350,6 +289,7 @@ def load_material_csv(path) -> Material:
         family="user table",
         description=comments[0] if comments else f"curve from {p.name}",
         provenance=f"user file {p}",
+        electrical_class=electrical_class,
     )
 
 
@@ -363,20 +303,19 @@ def save_material_csv(path, frequency_hz, mu, comments=()) -> None:
 
 
 def get_material(name_or_path: str) -> Material:
-    """A built-in material by name, or a user CSV file by path.
+    """A family member by name (``nizn-650``, ``mnzn-2300``, ``iron-powder-10``), or a user CSV by path.
 
     Raises
     ------
     MaterialError
-        Naming the unknown material and the built-in choices, or the missing file.
+        Naming the unknown material and the families with their µi ranges, a µi outside its
+        family's range, or the missing file.
     """
-    table = builtin_materials()
     key = str(name_or_path).strip()
-    if key.lower() in table:
-        return table[key.lower()]
+    member = parse_member_name(key)
+    if member is not None:
+        return family_material(*member)
     if key.lower().endswith(".csv") or Path(key).exists():
         return load_material_csv(key)
-    raise MaterialError(
-        f"unknown material {key!r}: use one of {', '.join(table)} or a CSV file "
-        "(frequency_hz,mu_prime,mu_double_prime)"
-    )
+    fams = ", ".join(f"{f.key}-<µi> ({f.mu_range[0]:g}–{f.mu_range[1]:g})" for f in builtin_families().values())
+    raise MaterialError(f"unknown material {key!r}: use a family member {fams}, or a CSV file (frequency_hz,mu_prime,mu_double_prime)")

@@ -16,7 +16,9 @@ import numpy as np
 
 from ..errors import TransformerError
 from ..model.choke import air_core_inductance
-from ..model.winding import MU0, Wire, round_wire_resistance, stray_capacitance, turn_length
+from ..model.capacitance import stray_capacitance
+from ..model.cores import ring_turn_length as turn_length
+from ..model.winding import MU0, Wire, round_wire_resistance
 from .circuit import GROUND, Circuit
 from .elements import coupled_windings_y
 
@@ -183,7 +185,7 @@ class FluxCoupled:
         """Estimate every parameter from the winding geometry and a material model.
 
         Leakage from :func:`leakage_estimate` (split evenly), Cs of the secondary from
-        :func:`cmcheck.model.winding.stray_capacitance` with the enamel's permittivity, copper
+        :func:`cmcheck.model.capacitance.stray_capacitance` with the enamel's permittivity, copper
         resistance of both windings at 1 MHz referred to the primary.
 
         References
@@ -192,8 +194,9 @@ class FluxCoupled:
         """
         ns = int(round(math.sqrt(impedance_ratio) * primary_turns))
         h = core.total_height
-        cs = stray_capacitance(core.od, core.id, h, wire.outer_diameter, wire.diameter, ns, wire.effective_eps_r)
-        lt = turn_length(core.od, core.id, h, wire.outer_diameter)
+        cs = stray_capacitance(core.turn_geometry(wire.outer_diameter), wire.outer_diameter, wire.diameter, ns,
+                               wire.effective_eps_r)
+        lt = core.turn_length(wire.outer_diameter)
         r = round_wire_resistance(1e6, wire.diameter, primary_turns * lt) + round_wire_resistance(
             1e6, wire.diameter, ns * lt
         ) / impedance_ratio

@@ -13,7 +13,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import TransformerError
-from ..model.winding import EPS0, MU0, Wire, round_wire_resistance, turn_length
+from ..model.cores import ring_turn_length as turn_length
+from ..model.winding import EPS0, MU0, Wire, round_wire_resistance
 
 __all__ = [
     "ETA0",
@@ -189,7 +190,7 @@ def winding_line_length(turns, core_od, core_id, height, conductor_od, leads=0.0
 
     References
     ----------
-    Common practice, no published source (turn path: :func:`cmcheck.model.winding.turn_length`).
+    Common practice, no published source (turn path: :func:`cmcheck.model.cores.ring_turn_length`).
     """
     out = np.asarray(turns, float) * turn_length(core_od, core_id, height, conductor_od) + np.asarray(leads, float)
     return float(out) if np.ndim(out) == 0 else out

@@ -66,7 +66,7 @@ class LineWinding:
     Parameters
     ----------
     core : RingCore or FactorCore
-        Anything with ``c1`` [1/m], ``od``/``id``/``total_height`` [m] (for the turn path) and
+        Any core of the :class:`cmcheck.model.cores.Core` contract (``c1`` [1/m], ``turn_length`` for the line length) and
         ``ae`` [m²].
     material : Material or callable
         Has ``permeability(f)`` (µ' − jµ''), or is a callable f → µ.
@@ -106,11 +106,11 @@ class LineWinding:
     @property
     def length(self) -> float:
         """Line length: turns × turn path (bundle width ≈ one wire) + leads [m]."""
-        c = self.core
-        height = getattr(c, "total_height", None)
-        if height is None:
-            raise TransformerError("core must be a ring (od, id, total_height) to derive the line length")
-        return winding_line_length(self.turns, c.od, c.id, height, self.wire.outer_diameter, self.leads)
+        path = self.core.turn_length(self.wire.outer_diameter)
+        if path is None:
+            raise TransformerError("core: its turn path is unknown (give the core's window and turn path) "
+                                   "so the line length cannot be derived")
+        return self.turns * path + self.leads
 
     @property
     def line(self) -> PairLine:
