@@ -438,7 +438,12 @@ def self_capacitance(core_od, core_id, height, turns, conductor_diameter, insula
     if np.any(~(d > 0)) or np.any(_arr(insulation) < 0):
         raise WindingError("conductor_diameter must be > 0 m and insulation ≥ 0 m")
     do = d + 2.0 * _arr(insulation)
-    phi = close_wound_angle(idd, do, n) if winding_angle is None else _arr(winding_angle)
+    if winding_angle is None:
+        phi = close_wound_angle(idd, do, n)
+    else:
+        phi = _arr(winding_angle)
+        if np.any(~((phi > 0) & (phi < 2.0 * math.pi))):
+            raise WindingError("winding_angle must lie between 0 and 2π rad")
     many = n > 1
     # One turn has no ramp across the ring: keep Φw inside (0, 2π) for the formulas, zero after.
     phi_ok = np.clip(np.where(many, phi, math.pi), 1e-6, 2.0 * math.pi - 1e-6)
