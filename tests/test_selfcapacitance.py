@@ -23,10 +23,10 @@ PF = 1e-12
 
 def test_two_wire_line_against_textbook():
     # Ramo, Whinnery & Van Duzer, 3rd ed., Table 5.11a: C' = πε/acosh(s/d); hand-evaluated at
-    # s/d = 10: acosh(10) = ln(10 + √99) = 2.993223, C' = 9.29290 pF/m.
-    assert sc.two_wire_capacitance_per_length(3e-3, 0.3e-3) == pytest.approx(9.29290e-12, rel=1e-5)
+    # s/d = 10: acosh(10) = ln(10 + √99) = 2.993223, C' = π·8.854188/2.993223 = 9.29308 pF/m.
+    assert sc.two_wire_capacitance_per_length(3e-3, 0.3e-3) == pytest.approx(9.29308e-12, abs=0, rel=1e-5)
     # Wide spacing: acosh(x) → ln(2x) (same table's thin-wire form).
-    assert sc.two_wire_capacitance_per_length(1.0, 1e-4) == pytest.approx(math.pi * EPS0 / math.log(2e4), rel=1e-8)
+    assert sc.two_wire_capacitance_per_length(1.0, 1e-4) == pytest.approx(math.pi * EPS0 / math.log(2e4), abs=0, rel=1e-8)
 
 
 def test_one_turn_is_only_the_leads():
@@ -37,8 +37,8 @@ def test_one_turn_is_only_the_leads():
         r = sc.self_capacitance(25.4e-3, 15.5e-3, 6.35e-3, 1, 0.5e-3, core_class=cls, lead_length=0.02,
                                 lead_spacing=5e-3)
         assert r.gap == r.air == r.chain == r.core == 0.0
-        # Two-wire line of 20 mm at s/d = 10: 0.02 · 9.29290 pF/m (Ramo et al., Table 5.11a).
-        assert r.total == pytest.approx(0.02 * 9.29290e-12, rel=1e-5)
+        # Two-wire line of 20 mm at s/d = 10: 0.02 · 9.29308 pF/m (Ramo et al., Table 5.11a).
+        assert r.total == pytest.approx(0.02 * 9.29308e-12, abs=0, rel=1e-5)
 
 
 def test_gap_part_is_the_parallel_plate_capacitor_of_a_thin_ring():
@@ -50,9 +50,9 @@ def test_gap_part_is_the_parallel_plate_capacitor_of_a_thin_ring():
     r = (od + idd) / 4
     with_gap = sc.ferrite_gap_capacitance(od, idd, h, phi, er, gap_constant=1.0)
     without = sc.ferrite_gap_capacitance(od, idd, h, phi, er, gap_constant=0.0)
-    assert with_gap - without == pytest.approx(EPS0 * (er - 1) * h * w / (r * (2 * math.pi - phi)), rel=1e-6)
+    assert with_gap - without == pytest.approx(EPS0 * (er - 1) * h * w / (r * (2 * math.pi - phi)), abs=0, rel=1e-6)
     # …and the wound part the same slab over the winding's arc r·Φw.
-    assert without == pytest.approx(EPS0 * (er - 1) * h * w / (r * phi), rel=1e-6)
+    assert without == pytest.approx(EPS0 * (er - 1) * h * w / (r * phi), abs=0, rel=1e-6)
 
 
 def test_air_core_has_no_gap_part_and_permittivity_raises_it():
@@ -83,35 +83,58 @@ def test_dielectric_core_self_capacitance_saturates_with_turns():
     assert d[1] / d[0] == pytest.approx(1.0, abs=0.1)
     c = [sc.self_capacitance(60e-3, 35e-3, 12.5e-3, n, 0.2e-3, core_class="conductive", **args).core
          for n in (50, 200)]
-    assert c[1] / c[0] == pytest.approx((200 * 201 / 199) / (50 * 51 / 49), rel=1e-9)
+    assert c[1] / c[0] == pytest.approx((200 * 201 / 199) / (50 * 51 / 49), abs=0, rel=1e-9)
 
 
 def test_floating_core_against_series_capacitors():
     # Circuit theory: two turns each Ctc to a floating core are Ctc in series with Ctc = Ctc/2;
     # three turns at 0, V/2, V leave the middle one uncharged: again Ctc/2.
-    assert sc.core_bridge_capacitance(2e-12, 2) == pytest.approx(1e-12, rel=1e-12)
-    assert sc.core_bridge_capacitance(2e-12, 3) == pytest.approx(1e-12, rel=1e-12)
+    assert sc.core_bridge_capacitance(2e-12, 2) == pytest.approx(1e-12, abs=0, rel=1e-12)
+    assert sc.core_bridge_capacitance(2e-12, 3) == pytest.approx(1e-12, abs=0, rel=1e-12)
     assert sc.core_bridge_capacitance(2e-12, 1) == 0.0
 
 
 def test_contact_capacitance_cell():
     # Massarini & Kazimierczuk 1997, Sec. III: touching coated wires, θ* = arccos(1 − ln(Do/D)/εr);
-    # hand-evaluated for D = 0.25 mm, 0.02 mm enamel, εr = 3.5: ln(0.29/0.25) = 0.148420,
-    # θ* = 0.291956, cell = 6.88482 + 6.82043 − 3.73205 = 9.97320; image doubles it →
-    # 19.9464·ε0 = 176.61 pF/m.
-    assert sc.contact_capacitance_per_length(0.25e-3, 0.02e-3, 3.5) == pytest.approx(176.61e-12, rel=2e-4)
+    # evaluated step by step for D = 0.25 mm, 0.02 mm enamel, εr = 3.5: ln(0.29/0.25) = 0.148420,
+    # θ* = arccos(0.957594) = 0.292263, cell = 6.892069 + 6.794369 − 3.732051 = 9.954387;
+    # the image doubles it → 19.908774·ε0 = 176.276 pF/m.
+    assert sc.contact_capacitance_per_length(0.25e-3, 0.02e-3, 3.5) == pytest.approx(176.276e-12, abs=0, rel=2e-5)
     # A coating in series can only lower it; thicker insulation too.
     base = sc.contact_capacitance_per_length(0.25e-3, 0.02e-3, 3.5)
     assert sc.contact_capacitance_per_length(0.25e-3, 0.02e-3, 3.5, coating=20e-6) < base
     assert sc.contact_capacitance_per_length(0.25e-3, 0.04e-3, 3.5) < base
 
 
+def test_core_coating_counts_as_insulation_scaled_by_permittivity():
+    # Series dielectric layers (Cheng, 2nd ed., §3-10, capacitors in series): a coating of
+    # thickness t and permittivity 2εr stores like t/2 of insulation of permittivity εr.
+    a = sc.contact_capacitance_per_length(0.3e-3, 0.02e-3, 3.0, coating=40e-6, coating_eps_r=6.0)
+    b = sc.contact_capacitance_per_length(0.3e-3, 0.04e-3, 3.0)
+    assert a == pytest.approx(b, abs=0, rel=1e-12)
+
+
+def test_air_part_of_diametrically_opposite_end_turns():
+    # Φw = π puts the end turns one diameter apart: on the inner wall a two-wire line of
+    # length H at spacing ID − do, on the outer wall at OD + do, on the faces at their mean
+    # (Ramo, Whinnery & Van Duzer, Table 5.11a, hand-assembled here).
+    od, idd, h, d, do = 25e-3, 15e-3, 10e-3, 1e-3, 1.1e-3
+
+    def cw(s):
+        return math.pi * EPS0 / math.acosh(s / d)
+
+    expect = cw(idd - do) * h + cw(od + do) * h + cw((idd + od) / 2) * (od - idd)
+    assert sc.air_end_capacitance(od, idd, h, d, do, math.pi) == pytest.approx(expect, abs=0, rel=1e-9)
+    # The ends closing in across the gap raise it (smaller spacing, Table 5.11a).
+    assert sc.air_end_capacitance(od, idd, h, d, do, 6.0) > sc.air_end_capacitance(od, idd, h, d, do, 4.0)
+
+
 def test_close_wound_angle_geometry():
     # Equal circles of diameter d around a circle of radius (ID − d)/2: pitch 2·asin(d/(ID − d));
     # at most 2π minus one pitch (the last turn touching the first).
     pitch = 2 * math.asin(1e-3 / 9e-3)
-    assert sc.close_wound_angle(10e-3, 1e-3, 5) == pytest.approx(4 * pitch, rel=1e-12)
-    assert sc.close_wound_angle(10e-3, 1e-3, 500) == pytest.approx(2 * math.pi - pitch, rel=1e-12)
+    assert sc.close_wound_angle(10e-3, 1e-3, 5) == pytest.approx(4 * pitch, abs=0, rel=1e-12)
+    assert sc.close_wound_angle(10e-3, 1e-3, 500) == pytest.approx(2 * math.pi - pitch, abs=0, rel=1e-12)
     assert sc.close_wound_angle(10e-3, 1e-3, 1) == 0.0
 
 
@@ -120,7 +143,7 @@ def test_vectorised_over_turns():
     n = np.array([2, 10, 40])
     r = sc.self_capacitance(25.4e-3, 15.5e-3, 12.7e-3, n, 0.3e-3)
     for i, ni in enumerate(n):
-        assert r.total[i] == pytest.approx(sc.self_capacitance(25.4e-3, 15.5e-3, 12.7e-3, int(ni), 0.3e-3).total)
+        assert r.total[i] == pytest.approx(sc.self_capacitance(25.4e-3, 15.5e-3, 12.7e-3, int(ni), 0.3e-3).total, abs=0, rel=1e-12)
 
 
 @pytest.mark.parametrize("kwargs, word", [
@@ -155,7 +178,7 @@ def test_gap_constant_from_our_own_field_solve():
     od, idd, d, do, n, phi, er = 16.25e-3, 7.9e-3, 0.9e-3, 0.96e-3, 10, 1.5 * math.pi, 12.0
     share = (fs.solve_section(od, idd, d, do, n, phi, er, 240) - fs.solve_section(od, idd, d, do, n, phi, 1.0, 240))
     closed = sc.ferrite_gap_capacitance(od, idd, 1.0, phi, er)
-    assert closed == pytest.approx(share, rel=0.10)
+    assert closed == pytest.approx(share, abs=0, rel=0.10)
     # …and an ideal gap (k = 1) does not: the discrete turns' grip on the ferrite matters.
     assert sc.ferrite_gap_capacitance(od, idd, 1.0, phi, er, gap_constant=1.0) > 1.1 * share
 
@@ -191,8 +214,8 @@ def test_ring_10x4x4_25_turns_as_a_conductive_core(real_dir):
     path = real_dir / "ring-windings" / "ring-10x4x4mm-25turns.s1p"
     c_meas, f0, lp = _resonance_capacitance(path)
     # The measurer's own numbers: LCR 55 µH, resonance near 9.4 MHz → about 5.3 pF.
-    assert lp == pytest.approx(55e-6, rel=0.05) and f0 == pytest.approx(9.37e6, rel=0.01)
-    assert c_meas == pytest.approx(5.3e-12, rel=0.05)
+    assert lp == pytest.approx(55e-6, abs=0, rel=0.05) and f0 == pytest.approx(9.37e6, abs=0, rel=0.01)
+    assert c_meas == pytest.approx(5.3e-12, abs=0, rel=0.05)
     # Why conductive: at 1 MHz the winding's loss tangent R/X is ≈ 0.09. Its µ is ≈ 120
     # (L over µ0·N²/C1, C1 = 2π/(h·ln(OD/ID)), IEC 60205); a NiZn ferrite of µi 120 relaxes near
     # 30 MHz (Snoek's law, (µi − 1)·fr ≈ 4 GHz for NiZn, from memory), giving tan δ ≈ f/fr ≈ 0.03
@@ -211,10 +234,10 @@ def test_ring_10x4x4_25_turns_as_a_conductive_core(real_dir):
     # close-wound (the default).
     geo = (10e-3, 4e-3, 4e-3, 25)
     cp = sc.self_capacitance(*geo, 0.2546e-3, core_class="conductive")
-    assert cp.total == pytest.approx(c_meas, rel=0.30)
+    assert cp.total == pytest.approx(c_meas, abs=0, rel=0.30)
     assert cp.core > 0.9 * cp.total  # the floating core carries it, not the turns or the air
     for d in (0.2e-3, 0.3e-3):  # the whole plausible wire range stays within ±35 %
-        assert sc.self_capacitance(*geo, d, core_class="conductive").total == pytest.approx(c_meas, rel=0.35)
+        assert sc.self_capacitance(*geo, d, core_class="conductive").total == pytest.approx(c_meas, abs=0, rel=0.35)
     # No hollow pass: as a dielectric (even εr = 15), and the old adjacent-turn estimate, miss
     # by more than four times.
     assert sc.self_capacitance(*geo, 0.2546e-3, core_eps_r=15.0).total < c_meas / 4
@@ -243,7 +266,7 @@ def test_1to49_secondary_capacitance(real_dir, prefix, od, idd, h, ns, np_):
     # within ±30 %.
     for phi in (None, sc.SPREAD_ANGLE):
         cp = sc.self_capacitance(od, idd, h, ns, 0.3e-3, winding_angle=phi)
-        assert cp.total == pytest.approx(cs_meas, rel=0.30)
+        assert cp.total == pytest.approx(cs_meas, abs=0, rel=0.30)
         assert cp.gap > cp.chain  # through the ferrite, not between adjacent turns
     # No hollow pass: the old adjacent-turn estimate misses by more than 35 %.
     assert stray_capacitance(od, idd, h, 0.34e-3, 0.3e-3, ns) < 0.65 * cs_meas
