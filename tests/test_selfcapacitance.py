@@ -129,6 +129,13 @@ def test_air_part_of_diametrically_opposite_end_turns():
     assert sc.air_end_capacitance(od, idd, h, d, do, 6.0) > sc.air_end_capacitance(od, idd, h, d, do, 4.0)
 
 
+def test_turn_length_is_the_section_perimeter_offset_by_the_conductor():
+    # Elementary geometry: the conductor's outline around a w × H section with square corners
+    # is the perimeter of a (w + do) × (H + do) rectangle (centre line at do/2 outside).
+    w, h, do = 5e-3, 6e-3, 1e-3
+    assert sc.turn_length(20e-3, 10e-3, h, do) == pytest.approx(2 * (w + do) + 2 * (h + do), abs=0, rel=1e-12)
+
+
 def test_close_wound_angle_geometry():
     # Equal circles of diameter d around a circle of radius (ID − d)/2: pitch 2·asin(d/(ID − d));
     # at most 2π minus one pitch (the last turn touching the first).
