@@ -150,7 +150,8 @@ def test_vectorised_over_turns():
     n = np.array([2, 10, 40])
     r = sc.self_capacitance(25.4e-3, 15.5e-3, 12.7e-3, n, 0.3e-3)
     for i, ni in enumerate(n):
-        assert r.total[i] == pytest.approx(sc.self_capacitance(25.4e-3, 15.5e-3, 12.7e-3, int(ni), 0.3e-3).total, abs=0, rel=1e-12)
+        one = sc.self_capacitance(25.4e-3, 15.5e-3, 12.7e-3, int(ni), 0.3e-3).total
+        assert r.total[i] == pytest.approx(one, abs=0, rel=1e-12)
 
 
 @pytest.mark.parametrize("kwargs, word", [

@@ -459,7 +459,8 @@ def self_capacitance(core_od, core_id, height, turns, conductor_diameter, insula
         core = zero
     else:
         gap = zero
-        ctc = contact_capacitance_per_length(d, insulation, insulation_eps_r, coating, coating_eps_r) * turn_length(od, idd, h, do)
+        per_length = contact_capacitance_per_length(d, insulation, insulation_eps_r, coating, coating_eps_r)
+        ctc = per_length * turn_length(od, idd, h, do)
         core = core_bridge_capacitance(ctc, n) + zero
     leads = lead_capacitance(lead_length, lead_spacing, d) + zero
     return SelfCapacitance(_out(gap), _out(air), _out(chain), _out(core), _out(leads), _out(phi + zero))
