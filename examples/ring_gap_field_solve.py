@@ -33,9 +33,11 @@ Its output on 2 December 2026 (720 cells round, 0.3 mm wire unless stated):
                               0.90   12   0.360                           0.75   10   0.497
                               0.75   10   0.509                           0.75   15   0.439
                               0.75   15   0.454     10 x 4 mm, 25 t,      0.75   12   0.419
-                                                    0.25 mm wire
+                                                    0.25 mm wire          0.90   12   0.306
+                                                                          0.75   10   0.445
+                                                                          0.75   15   0.384
 
-Without the quarter ring: k = 0.34–0.51, mean 0.43, the module's GAP_CONSTANT. At a quarter
+Without the quarter ring: k = 0.31–0.51, mean 0.42, the module's GAP_CONSTANT. At a quarter
 ring the closely packed turns hold the ferrite under them below the ideal ramp and the fit
 goes negative: the closed form over-states the ferrite part there by about 30 %.
 

@@ -49,7 +49,7 @@ EPS0 = 8.8541878128e-12  # [F/m], CODATA 2018
 
 #: Gap constant k of :func:`ferrite_gap_capacitance` [dimensionless], calibrated against our
 #: own 2-D finite-volume field solve of the ring section (examples/ring_gap_field_solve.py).
-GAP_CONSTANT = 0.43
+GAP_CONSTANT = 0.42
 
 #: Winding angle of a winding "spread over the ring" [rad]: 300°, the ends a sixth of the ring
 #: apart (common practice, no published source).
@@ -174,7 +174,7 @@ def ferrite_gap_capacitance(core_od, core_id, height, winding_angle, core_eps_r,
     k was fitted to a 2-D finite-volume solve of the ring's mid-height section (our own,
     examples/ring_gap_field_solve.py; tests/test_selfcapacitance.py reruns a coarse case):
     over Φw = 0.5·2π … 0.9·2π, εr = 10–15 and three rings (25.4 × 15.5, 16.25 × 7.9 and
-    10 × 4 mm, 0.25–0.3 mm wire) it gives k = 0.34–0.51, mean 0.43 (:data:`GAP_CONSTANT`).
+    10 × 4 mm, 0.25–0.3 mm wire) it gives k = 0.31–0.51, mean 0.42 (:data:`GAP_CONSTANT`).
     A close winding over a quarter ring gives k ≈ −0.4: there the discrete turns hold the
     ferrite under the winding below the ideal ramp and this form over-states Cg by about
     30 %. A 2-D section omits the top and bottom faces and the fringing above and below the
