@@ -145,6 +145,15 @@ def test_close_wound_angle_geometry():
     assert sc.close_wound_angle(10e-3, 1e-3, 1) == 0.0
 
 
+def test_default_winding_angle_is_spread_unless_the_turns_fill_more():
+    # common practice, no published source: a choke's turns are spread round the ring (300°);
+    # a winding that cannot fit in 300° is close-wound (elementary geometry, as above).
+    assert sc.self_capacitance(25.4e-3, 15.5e-3, 6.35e-3, 8, 0.3e-3).winding_angle == sc.SPREAD_ANGLE
+    many = sc.self_capacitance(25.4e-3, 15.5e-3, 6.35e-3, 140, 0.3e-3)
+    assert many.winding_angle == pytest.approx(sc.close_wound_angle(15.5e-3, 0.34e-3, 140), abs=0, rel=1e-12)
+    assert many.winding_angle > sc.SPREAD_ANGLE
+
+
 def test_vectorised_over_turns():
     # common practice, no published source: arrays give the same as element by element.
     n = np.array([2, 10, 40])
@@ -239,7 +248,7 @@ def test_ring_10x4x4_25_turns_as_a_conductive_core(real_dir):
     assert z1.real / z1.imag > 0.06
     # Wire not recorded: 25 turns lie in one layer in a 4 mm hole with 0.2–0.3 mm wire; 30 AWG
     # (0.2546 mm, ASTM B258) is the middle; single-build enamel (the default), uncoated core,
-    # close-wound (the default).
+    # spread (the default; the floating core's part does not depend on Φw).
     geo = (10e-3, 4e-3, 4e-3, 25)
     cp = sc.self_capacitance(*geo, 0.2546e-3, core_class="conductive")
     assert cp.total == pytest.approx(c_meas, abs=0, rel=0.30)
@@ -270,10 +279,10 @@ def test_1to49_secondary_capacitance(real_dir, prefix, od, idd, h, ns, np_):
     cs_meas = c_primary / n**2
     assert 0.7e-12 < cs_meas < 1.5e-12
     # 0.3 mm enamelled wire (the measurer's), NiZn εr 12 (mid of 10–15); how the secondary
-    # was spread is not recorded: both the default close-wound and a spread winding must land
+    # was spread is not recorded: both a close-wound and the default spread winding must land
     # within ±35 % (they land at −9 %/−30 % on stack2, +12 %/+5 % on single; the apparent Cs also
     # holds the primary's own and the primary-to-secondary capacitance, so it reads high).
-    for phi in (None, sc.SPREAD_ANGLE):
+    for phi in (sc.close_wound_angle(idd, 0.34e-3, ns), None):
         cp = sc.self_capacitance(od, idd, h, ns, 0.3e-3, winding_angle=phi)
         assert cp.total == pytest.approx(cs_meas, abs=0, rel=0.35)
         assert cp.gap > cp.chain  # through the ferrite, not between adjacent turns
