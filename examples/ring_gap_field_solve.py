@@ -43,10 +43,10 @@ goes negative: the closed form over-states the ferrite part there by about 30 %.
 
 References
 ----------
-Finite-volume (five-point) discretisation of ∇·(ε∇V) = 0: R. F. Harrington, *Field Computation
-by Moment Methods* is not used; the scheme is the textbook one of M. N. O. Sadiku, *Numerical
-Techniques in Electromagnetics*, 2nd ed., CRC 2001, §3.5 (finite differences, inhomogeneous
-media, the ε of a face as the harmonic mean of its two cells). Energy form of capacitance:
+Finite-volume (five-point) discretisation of ∇·(ε∇V) = 0, the textbook scheme of
+M. N. O. Sadiku, *Numerical Techniques in Electromagnetics*, 2nd ed., CRC 2001, ch. 3 (finite
+differences in inhomogeneous media; the ε of a face as the series, harmonic mean of its two
+cells). Energy form of capacitance:
 C = 2W/V² (any electrostatics text, e.g. D. K. Cheng, *Field and Wave Electromagnetics*,
 2nd ed., 1989, eq. 3-176).
 """

@@ -183,7 +183,7 @@ def test_bad_input_names_the_parameter(kwargs, word):
 
 def test_gap_constant_from_our_own_field_solve():
     # examples/ring_gap_field_solve.py: 2-D finite-volume Laplace solve of the ring's mid-height
-    # section (Sadiku, Numerical Techniques in Electromagnetics, 2nd ed., §3.5). A coarse grid
+    # section (Sadiku, Numerical Techniques in Electromagnetics, 2nd ed., ch. 3). A coarse grid
     # and thick wire keep this quick; the converged table the script prints (0.3 mm wire,
     # 720 cells round) is what GAP_CONSTANT was set from. The closed form with GAP_CONSTANT
     # must reproduce the solve's ferrite share within 10 %.
@@ -207,9 +207,10 @@ def _resonance_capacitance(path: Path, f_low: float = 0.5e6) -> tuple[float, flo
 
     L is the parallel inductance −1/(ω·Im(1/Z)) below ``f_low``; f0 the first frequency above
     1 MHz where X turns from + to − (linear interpolation). A Debye-relaxing core is exactly a
-    parallel L‖R with L constant (µ = µi/(1 + jf/fr) ⇒ 1/(jωL0µ) = 1/(jωL0µi) + f/(fr·ωL0µi·…)
-    real), so at the zero of X the capacitor's susceptance cancels 1/(ωL) with the low-
-    frequency L. Returns (C [F], f0 [Hz], L [H]).
+    parallel L‖R with both constant: µ = µi/(1 + jf/fr) gives 1/(jωL0µ) = 1/(jωL0µi) +
+    1/(2π·fr·L0µi) (Debye relaxation, the form in Tsutaoka, J. Appl. Phys. 93, 2003), so at the
+    zero of X the capacitor's susceptance cancels 1/(ωL) with the low-frequency L.
+    Returns (C [F], f0 [Hz], L [H]).
     """
     from cmcheck.measurement.methods import reflection_z
     from cmcheck.measurement.touchstone import read_touchstone
