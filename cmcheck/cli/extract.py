@@ -14,7 +14,8 @@ from ..measurement.qa import FileResult, Limits, evaluate_files, exit_status, mo
 from ..curve import ImpedanceCurve
 from ..errors import CmcheckError, MeasurementError, UnitError
 from ..measurement.methods import METHODS, Accuracy, Fixture
-from ..reporting.files import SAFETY_NOTES, atomic_write, check_outputs, plot_curves, staged_outputs, write_csv, write_json
+from ..reporting.files import SAFETY_NOTES, atomic_write, check_outputs, staged_outputs, write_csv, write_json
+from ..reporting.plots import plot_curves
 from ..measurement.touchstone import read_touchstone
 from ..units import format_quantity, parse_resistance
 from . import options as o

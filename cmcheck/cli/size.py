@@ -13,7 +13,8 @@ import typer
 from ..design.compare import DEFAULT_LINE_R_MAX, DEFAULT_LINE_X_MAX, compare_materials, comparison_curves
 from ..errors import CmcheckWarning, DesignError, UnitError
 from ..model.materials import builtin_materials, get_material
-from ..reporting.files import SAFETY_NOTES, check_outputs, plot_curves, staged_outputs, write_json
+from ..reporting.files import SAFETY_NOTES, check_outputs, staged_outputs, write_json
+from ..reporting.plots import plot_curves
 from ..design.catalogue import builtin_ring_sizes, load_ring_sizes
 from ..design.search import DEFAULT_BEND_RATIO, DEFAULT_MAX_CORES, DEFAULT_TARGET_OHM, SizeResult, SizeSpec, format_rise, size as run_size
 from ..design.heat import DEFAULT_MAX_RISE_K, Drive
