@@ -60,6 +60,8 @@ def format_cell(value, column: Column) -> str:
     suffix = ""
     if isinstance(value, Cell):
         value, suffix = value.value, value.suffix
+    if isinstance(value, str) and column.format != "text":
+        return value + suffix  # a word where a number would be ("–", "n/a")
     if column.format in ("flag", "yesno"):
         return FORMATS[column.format](value) + suffix
     if _missing(value):
