@@ -278,7 +278,7 @@ class Band:
         The band edges themselves are always on the grid so that in-band extremes are seen.
         """
         if points < 2:
-            raise UnitError("--points must be at least 2")
+            raise UnitError(f"points must be at least 2, got {points}", parameter="points")
         f = np.geomspace(self.low / pad, self.high * pad, points)
         edges = np.array([e for seg in self.segments for e in seg])
         return np.unique(np.concatenate([f, edges]))

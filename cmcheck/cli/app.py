@@ -13,6 +13,7 @@ import warnings
 import typer
 
 from ..errors import CmcheckError, CmcheckWarning
+from .flags import option_message
 
 app = typer.Typer(
     name="cmcheck",
@@ -60,7 +61,8 @@ def _run(argv: list[str] | None) -> int:
         rv = app(args=argv, prog_name="cmcheck", standalone_mode=False)
         return rv if isinstance(rv, int) else 0
     except CmcheckError as exc:
-        return _error(str(exc))
+        # The library names parameters; say which option the user gave instead.
+        return _error(option_message(str(exc), getattr(exc, "parameter", None)))
     except BrokenPipeError:
         # The reader went away (e.g. `| head`); files were written before the tables.
         try:

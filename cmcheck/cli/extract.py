@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import sys
+from dataclasses import replace
 from pathlib import Path
 from typing import Annotated, Optional
 
@@ -17,6 +18,7 @@ from ..reporting.files import check_outputs
 from ..reporting.outputs import write_report
 from ..units import parse_resistance
 from . import options as o
+from .flags import option_message
 from .app import app
 from .render import show
 
@@ -175,10 +177,17 @@ def extract(
     raise typer.Exit(exit_status(results))
 
 
+def _in_options(r: FileResult) -> FileResult:
+    """A file's error reworded in option language (the library names parameters)."""
+    if r.error is None:
+        return r
+    return replace(r, error=option_message(r.error, r.error_parameter))
+
+
 def _run(paths, legs, method, z0, accuracy, fixture, ports, limits) -> list[FileResult]:
     def report(r: FileResult) -> None:
         if r.error:
-            print(f"error: {r.error}", file=sys.stderr)
+            print(f"error: {_in_options(r).error}", file=sys.stderr)
 
     n = len(paths) + (1 if legs else 0)
     kwargs = dict(method=method, z0=z0, accuracy=accuracy, fixture=fixture, balanced_ports=ports,
@@ -186,7 +195,7 @@ def _run(paths, legs, method, z0, accuracy, fixture, ports, limits) -> list[File
     from .render import err_console
 
     if n <= 20 or not err_console.is_terminal:
-        return evaluate_files(paths, on_done=report, **kwargs)
+        return [_in_options(r) for r in evaluate_files(paths, on_done=report, **kwargs)]
     from rich.progress import Progress
 
     with Progress(console=err_console, transient=True) as progress:
@@ -195,6 +204,6 @@ def _run(paths, legs, method, z0, accuracy, fixture, ports, limits) -> list[File
         def tick(r: FileResult) -> None:
             progress.advance(task)
             if r.error:
-                progress.console.print(f"error: {r.error}", markup=False, highlight=False)
+                progress.console.print(f"error: {_in_options(r).error}", markup=False, highlight=False)
 
-        return evaluate_files(paths, on_done=tick, **kwargs)
+        return [_in_options(r) for r in evaluate_files(paths, on_done=tick, **kwargs)]

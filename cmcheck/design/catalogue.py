@@ -126,8 +126,11 @@ def load_ring_sizes(path) -> RingSizes:
     DimensionError
         Naming the file and line when the table is missing, unreadable or impossible.
     """
-    where = f"--sizes {path}"
-    return _ring_sizes(read_table(path, where, DimensionError), where)
+    where = f"sizes {path}"
+    try:
+        return _ring_sizes(read_table(path, where, DimensionError), where, source=str(path))
+    except DimensionError as exc:
+        raise DimensionError(str(exc), parameter="sizes") from None
 
 
 def bend_radius(core_od, core_id, height, conductor_od):

@@ -151,11 +151,12 @@ def worst_case_reduction(z_choke, r_max=DEFAULT_LINE_R_MAX, x_max=DEFAULT_LINE_X
     worked in the project's DESIGN.md §4.
     """
     if not (math.isfinite(r_max) and r_max >= 0):
-        raise DesignError(f"--line-r-max must be ≥ 0, got {r_max:g} Ω")
+        raise DesignError(f"line_r_max must be ≥ 0 Ω, got {r_max:g} Ω", parameter="line_r_max")
     if not (math.isfinite(x_max) and x_max >= 0):
-        raise DesignError(f"--line-x-max must be ≥ 0, got {x_max:g} Ω")
+        raise DesignError(f"line_x_max must be ≥ 0 Ω, got {x_max:g} Ω", parameter="line_x_max")
     if r_max == 0 and x_max == 0:
-        raise DesignError("--line-r-max and --line-x-max cannot both be 0: the line impedance region is empty")
+        raise DesignError("line_r_max and line_x_max cannot both be 0 Ω: the line impedance region is empty",
+                          parameter=("line_r_max", "line_x_max"))
     zc = np.asarray(z_choke, dtype=complex)
     edges = (
         (complex(0.0, -x_max), 1j, 2.0 * x_max),  # R = 0
@@ -305,11 +306,11 @@ def compare_materials(
     """
     materials = list(materials)
     if not materials:
-        raise DesignError("--materials: name at least one material")
+        raise DesignError("materials: name at least one material", parameter="materials")
     names = [m.name for m in materials]
     dup = sorted({n for n in names if names.count(n) > 1})
     if dup:
-        raise DesignError(f"--materials: {', '.join(dup)} given more than once")
+        raise DesignError(f"materials: {', '.join(dup)} given more than once", parameter="materials")
     # Validate the region before any work.
     worst_case_reduction(0j + 1.0, line_r_max, line_x_max)
     scores = []

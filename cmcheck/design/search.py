@@ -28,6 +28,7 @@ from ..model.cores import RingCore, effective_parameters, ring_core_factors, rin
 from ..errors import DesignError
 from ..model.materials import Material
 from .catalogue import RingSizes, bend_radius, builtin_ring_sizes, load_ring_sizes
+from .diagnosis import Diagnosis, SearchContext, diagnose, diagnose_heat, diagnose_nothing_fits, format_rise
 from .heat import DEFAULT_MAX_RISE_K, Drive, heat_check
 from ..units import Band
 from ..model.winding import Cable, Winding, Wire, max_turns_single_layer, stray_capacitance, turn_length
@@ -43,8 +44,10 @@ __all__ = [
     "SizedDesign",
     "bend_radius",
     "builtin_ring_sizes",
+    "candidate_geometry",
     "format_rise",
     "load_ring_sizes",
+    "scan_candidates",
     "size",
 ]
 
@@ -127,32 +130,31 @@ class SizeSpec:
     def __post_init__(self) -> None:
         object.__setattr__(self, "materials", tuple(self.materials))
         if not (math.isfinite(self.target_ohm) and self.target_ohm > 0):
-            opt = "--target-r" if self.criterion == "resistance" else "--target-z"
-            raise DesignError(f"{opt} must be a positive resistance, got {self.target_ohm:g} Ω")
+            raise DesignError(f"target_ohm must be a positive resistance, got {self.target_ohm:g} Ω", parameter="target_ohm")
         if self.criterion not in ("resistance", "impedance"):
-            raise DesignError(f"criterion must be 'resistance' or 'impedance', got {self.criterion!r}")
+            raise DesignError(f"criterion must be 'resistance' or 'impedance', got {self.criterion!r}", parameter="criterion")
         if not self.materials:
-            raise DesignError("--materials: name at least one material")
+            raise DesignError("materials: name at least one material", parameter="materials")
         names = [m.name for m in self.materials]
         dup = sorted({n for n in names if names.count(n) > 1})
         if dup:
-            raise DesignError(f"--materials: {', '.join(dup)} given more than once")
+            raise DesignError(f"materials: {', '.join(dup)} given more than once", parameter="materials")
         if len(self.sizes) == 0:
-            raise DesignError("--sizes: the table of core sizes is empty")
+            raise DesignError("sizes: the table of core sizes is empty", parameter="sizes")
         if not (isinstance(self.max_cores, (int, np.integer)) and self.max_cores >= 1):
-            raise DesignError(f"--max-cores must be a whole number ≥ 1, got {self.max_cores!r}")
+            raise DesignError(f"max_cores must be a whole number ≥ 1, got {self.max_cores!r}", parameter="max_cores")
         if self.max_turns is not None and not (isinstance(self.max_turns, (int, np.integer)) and self.max_turns >= 1):
-            raise DesignError(f"--max-turns must be a whole number ≥ 1, got {self.max_turns!r}")
+            raise DesignError(f"max_turns must be a whole number ≥ 1, got {self.max_turns!r}", parameter="max_turns")
         if self.min_bend_radius is not None and not (math.isfinite(self.min_bend_radius) and self.min_bend_radius >= 0):
-            raise DesignError(f"--min-bend-radius must be ≥ 0, got {self.min_bend_radius!r} m")
+            raise DesignError(f"min_bend_radius must be ≥ 0 m, got {self.min_bend_radius!r} m", parameter="min_bend_radius")
         if not (math.isfinite(self.cp_factor) and self.cp_factor >= 0):
-            raise DesignError(f"--cp-factor must be ≥ 0, got {self.cp_factor:g}")
+            raise DesignError(f"cp_factor must be ≥ 0, got {self.cp_factor:g}", parameter="cp_factor")
         if not (isinstance(self.points, (int, np.integer)) and self.points >= 2):
-            raise DesignError(f"--points must be at least 2, got {self.points!r}")
+            raise DesignError(f"points must be at least 2, got {self.points!r}", parameter="points")
         if not (isinstance(self.top, (int, np.integer)) and self.top >= 1):
-            raise DesignError(f"--top must be a whole number ≥ 1, got {self.top!r}")
+            raise DesignError(f"top must be a whole number ≥ 1, got {self.top!r}", parameter="top")
         if not (math.isfinite(self.max_rise_k) and self.max_rise_k > 0):
-            raise DesignError(f"--max-rise must be positive, got {self.max_rise_k:g} K")
+            raise DesignError(f"max_rise_k must be above 0 K, got {self.max_rise_k:g} K", parameter="max_rise_k")
 
     @property
     def bend_limit(self) -> float:
@@ -216,23 +218,10 @@ class SizedDesign:
             bend_radius_m=self.bend_radius_m,
         )
         if self.design.cp_source == "given":
-            d["cp_source"] = "estimated, scaled by --cp-factor"
+            d["cp_source"] = "estimated, scaled by cp_factor"
         if self.heat is not None:
             d.update(self.heat)
         return d
-
-
-@dataclass(frozen=True)
-class Diagnosis:
-    """Why no design met the target, and what to relax (one line each)."""
-
-    reason: str
-    relax: tuple[str, ...]
-    limits: tuple[str, ...] = ()
-    facts: tuple[str, ...] = ()
-
-    def to_dict(self) -> dict:
-        return {"reason": self.reason, "relax": list(self.relax), "limits": list(self.limits), "facts": list(self.facts)}
 
 
 @dataclass(frozen=True, eq=False)
@@ -326,7 +315,7 @@ def _geometry(spec: SizeSpec, *, turns_factor: float = 1.0, limits: bool = True)
     """Enumerate (size, stack, turns) and their material-independent quantities.
 
     ``turns_factor`` and ``limits=False`` widen the space for the no-solution diagnosis
-    (more turns than fit, no bend or --max-turns limit).
+    (more turns than fit, no bend or ``max_turns`` limit).
     """
     sizes = spec.sizes
     cond = spec.conductor
@@ -479,9 +468,8 @@ def size(spec: SizeSpec, progress: Callable[[int, int], None] | None = None) -> 
     scan = _scan(spec, geo, f, mus, r_per_m, progress=progress)
     total = geo.turns.size * len(mus)
     closest = diagnosis = None
-    if not scan.passing:
-        # Only a failed search needs the diagnosis (which re-runs the search itself).
-        from .diagnosis import diagnose, diagnose_heat, diagnose_nothing_fits
+    # Only a failed search needs the diagnosis, which re-runs the search through this context.
+    ctx = SearchContext(f, mus, r_per_m, candidate_geometry, scan_candidates)
     if scan.passing:
         cols = [np.concatenate([p[i] for p in scan.passing]) for i in range(8)]
         designs = _short_list(spec, geo, *cols)
@@ -490,16 +478,37 @@ def size(spec: SizeSpec, progress: Callable[[int, int], None] | None = None) -> 
         if scan.meeting and scan.coolest_hot is not None:
             _, m, g = scan.coolest_hot
             closest = _single(spec, geo, m, g, f)
-            diagnosis = diagnose_heat(spec, closest, scan.meeting, f, mus, r_per_m)
+            diagnosis = diagnose_heat(spec, closest, scan.meeting, ctx)
         elif scan.best_at is not None:
             closest = _single(spec, geo, *scan.best_at, f)
-            diagnosis = diagnose(spec, closest, f, mus, r_per_m)
+            diagnosis = diagnose(spec, closest, ctx)
         else:
             diagnosis = diagnose_nothing_fits(spec)
     return SizeResult(
         spec=spec, designs=designs, candidates_searched=total, meeting_target=scan.meeting, too_hot=scan.hot,
         closest=closest, diagnosis=diagnosis, elapsed_s=time.perf_counter() - t0, space=space,
     )
+
+
+def candidate_geometry(spec: SizeSpec, *, turns_factor: float = 1.0, limits: bool = True):
+    """The material-independent candidates of a search: (geometry, counts of the design space).
+
+    Public entry for counterfactual re-runs (:mod:`cmcheck.design.diagnosis`):
+    ``turns_factor`` > 1 allows that many times the turns that fit one layer, and
+    ``limits=False`` drops the bend and ``max_turns`` limits.
+    """
+    return _geometry(spec, turns_factor=turns_factor, limits=limits)
+
+
+def scan_candidates(spec: SizeSpec, geometry, f: np.ndarray, mus: Sequence[np.ndarray], r_per_m: np.ndarray, *,
+                    collect: bool = True):
+    """Evaluate every (material, geometry) candidate on the grid ``f`` [Hz].
+
+    Returns the scan's findings: ``best_score`` (min over the band / target of the best
+    candidate), ``best_at`` (material and geometry index), ``meeting``, ``passing``. With
+    ``collect=False`` the pass stops at the first candidate that meets the target.
+    """
+    return _scan(spec, geometry, f, mus, r_per_m, collect=collect)
 
 
 def _minimum(values: np.ndarray, f: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -581,8 +590,3 @@ def _single(spec: SizeSpec, geo: _Geometry, m: int, g: int, f: np.ndarray) -> Si
                                  hc.peak_flux_t[0], hc.peak_flux_hz[0]])
     return _make(spec, geo, m, g, float(r_min[0]), float(r_hz[0]), float(x_min[0]), float(x_hz[0]),
                  float(v / spec.target_ohm), heat)
-
-
-def format_rise(k: float) -> str:
-    """A temperature rise for people: past a few hundred kelvin the number only means "destroyed"."""
-    return f"≈ {k:.0f} K" if k < 300 else "> 300 K"

@@ -331,7 +331,7 @@ def predict(design: ChokeDesign, band: Band, points: int = 201) -> Prediction:
     if design.cp_source == "none":
         warnings.warn(
             "no stray-capacitance estimate for a core given only by its factor; the model has no "
-            "self-resonance unless --cp (Winding.cp) is given",
+            "self-resonance unless Winding.cp is given",
             CmcheckWarning,
             stacklevel=2,
         )
