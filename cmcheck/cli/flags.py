@@ -10,7 +10,9 @@ sizing remedy. DEVELOPERS.md's names table is generated from :data:`FLAGS`
 from __future__ import annotations
 
 import re
-from typing import Any, NamedTuple
+from typing import NamedTuple
+
+from ..design.diagnosis import Remedy
 
 __all__ = ["FLAGS", "Flag", "names_table", "option_for", "option_message", "option_phrase"]
 
@@ -101,14 +103,13 @@ def option_message(message: str, parameter: str | tuple[str, ...] | None) -> str
     return message if found else f"{' / '.join(option_for(n) for n in names)}: {message}"
 
 
-def option_phrase(parameter: str, value: Any = None) -> str:
-    """A remedy's "set this" in option language: ``--max-cores 8``, ``--sizes``, ``--keep-hot``."""
-    opt = option_for(parameter)
-    if value is None or value is True:
-        return opt
-    if isinstance(value, float):
-        return f"{opt} {value:g}"
-    return f"{opt} {value}"
+def option_phrase(remedy: Remedy) -> str:
+    """The option a sizing remedy changes (``--max-cores``); the target's option follows its criterion."""
+    if remedy.parameter == "target_ohm":
+        return "--target-r" if remedy.facts.get("criterion") == "resistance" else "--target-z"
+    if remedy.parameter == "cp":
+        return "`cmcheck predict --cp`"  # a measured Cp is checked on one design, not searched
+    return option_for(remedy.parameter)
 
 
 def names_table() -> str:

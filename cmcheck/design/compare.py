@@ -26,6 +26,7 @@ __all__ = [
     "DEFAULT_LINE_X_MAX",
     "Comparison",
     "MaterialScore",
+    "compare_designs",
     "compare_materials",
     "current_ratio",
     "worst_case_reduction",
@@ -236,6 +237,8 @@ class MaterialScore:
             "worst_case_hz": self.worst_case_hz,
             "worst_case_line_ohm": {"re": self.worst_case_line_ohm.real, "im": self.worst_case_line_ohm.imag},
             "self_resonance_hz": self.prediction.summary["self_resonance_hz"],
+            "low_frequency_inductance_h": self.prediction.summary["low_frequency_inductance_h"],
+            "design": {"description": self.prediction.design.describe(), **self.prediction.design.to_dict()},
         }
 
 
@@ -304,18 +307,39 @@ def compare_materials(
     ----------
     Choke model as :func:`cmcheck.model.choke.predict`; worst case per :func:`worst_case_reduction`.
     """
-    materials = list(materials)
-    if not materials:
+    return compare_designs([ChokeDesign(core, m, winding) for m in materials], band, points=points,
+                           line_r_max=line_r_max, line_x_max=line_x_max)
+
+
+def compare_designs(
+    designs, band: Band, *,
+    points: int = 201, line_r_max: float = DEFAULT_LINE_R_MAX, line_x_max: float = DEFAULT_LINE_X_MAX,
+) -> Comparison:
+    """Score several designs, one per material, over a band (see :func:`compare_materials`).
+
+    Parameters
+    ----------
+    designs : sequence of ChokeDesign
+        At least one; their material names must differ (a score is named by its material).
+    band, points, line_r_max, line_x_max
+        As for :func:`compare_materials`.
+
+    References
+    ----------
+    Choke model as :func:`cmcheck.model.choke.predict`; worst case per :func:`worst_case_reduction`.
+    """
+    designs = list(designs)
+    if not designs:
         raise DesignError("materials: name at least one material", parameter="materials")
-    names = [m.name for m in materials]
+    names = [d.material.name for d in designs]
     dup = sorted({n for n in names if names.count(n) > 1})
     if dup:
         raise DesignError(f"materials: {', '.join(dup)} given more than once", parameter="materials")
     # Validate the region before any work.
     worst_case_reduction(0j + 1.0, line_r_max, line_x_max)
     scores = []
-    for mat in materials:
-        design = ChokeDesign(core, mat, winding)
+    for design in designs:
+        mat = design.material
         pred = predict(design, band, points)
         f = pred.curve.frequency_hz
         inside = band.contains(f)

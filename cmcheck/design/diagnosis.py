@@ -40,9 +40,9 @@ __all__ = [
 ]
 
 
-def parameter_phrase(parameter: str, value: Any = None) -> str:
-    """How a Python caller reads "set ``parameter`` (to ``value``)": ``max_cores=8``, ``sizes``."""
-    return parameter if value is None else f"{parameter}={value!r}"
+def parameter_phrase(remedy: Remedy) -> str:
+    """How a Python caller reads the parameter a remedy changes: its name (``max_cores``)."""
+    return str(remedy.parameter)
 
 
 @dataclass(frozen=True)
@@ -62,7 +62,7 @@ class Remedy:
     facts : mapping
         Numbers behind the remedy, SI units, keys with units (``split_hz``, ``impedance_ohm``).
     template : str
-        The sentence, with ``{set}`` where the parameter (and value) is named.
+        The sentence, with ``{set}`` where the parameter is named.
     """
 
     kind: str
@@ -71,11 +71,11 @@ class Remedy:
     facts: Mapping[str, Any] = field(default_factory=dict)
     template: str = ""
 
-    def describe(self, name: Callable[[str, Any], str] = parameter_phrase) -> str:
-        """The remedy as one sentence; ``name(parameter, value)`` words the parameter."""
+    def describe(self, name: Callable[[Remedy], str] | None = None) -> str:
+        """The remedy as one sentence; ``name(remedy)`` words its parameter (default: the name)."""
         if self.parameter is None:
             return self.template
-        return self.template.format(set=name(self.parameter, self.value))
+        return self.template.format(set=(name or parameter_phrase)(self))
 
     def to_dict(self) -> dict:
         return {"kind": self.kind, "parameter": self.parameter, "value": self.value, "facts": dict(self.facts)}
@@ -90,11 +90,11 @@ class Diagnosis:
     limits: tuple[str, ...] = ()
     facts: tuple[str, ...] = ()
 
-    def sentences(self, name: Callable[[str, Any], str] = parameter_phrase) -> list[str]:
+    def sentences(self, name: Callable[[Remedy], str] | None = None) -> list[str]:
         """The remedies worded with ``name`` (see :meth:`Remedy.describe`)."""
         return [r.describe(name) for r in self.relax]
 
-    def to_dict(self, name: Callable[[str, Any], str] = parameter_phrase) -> dict:
+    def to_dict(self, name: Callable[[Remedy], str] | None = None) -> dict:
         return {"reason": self.reason, "relax": self.sentences(name), "remedies": [r.to_dict() for r in self.relax],
                 "limits": list(self.limits), "facts": list(self.facts)}
 
@@ -247,13 +247,13 @@ def diagnose(spec: SizeSpec, closest: SizedDesign, ctx: SearchContext) -> Diagno
                   f"{_bend_limited_text(spec, ctx)}; with tighter bends a design would meet the target, e.g. {by_bend}")
         limits.append("bend")
         relax += [Remedy("tighter_bend", "min_bend_radius", cond.outer_diameter,
-                         template="a tighter bend ({set}, one cable diameter) if the cable allows it"),
+                         template="a tighter bend ({set} down to one cable diameter) if the cable allows it"),
                   Remedy("flexible_cable", template="a thinner, more flexible cable for the choke section"),
                   Remedy("wider_rings", "sizes", template="rings with a wider section (add them with {set})")]
     elif by_cores:
         reason = f"not enough core: stacks of up to {more_cores} cores would meet the target, e.g. {by_cores}"
         limits.append("cores")
-        relax.append(Remedy("more_cores", "max_cores", more_cores, template="allow more stacked cores ({set})"))
+        relax.append(Remedy("more_cores", "max_cores", more_cores, template=f"allow more stacked cores ({{set}} {more_cores})"))
     elif by_turns:
         if spec.max_turns is not None:
             why = f"the cap of {spec.max_turns} turns and one layer of {what} through the hole limit the turns"
@@ -271,7 +271,7 @@ def diagnose(spec: SizeSpec, closest: SizedDesign, ctx: SearchContext) -> Diagno
                   "a design would meet the target")
         limits.append("self-resonance")
         relax.append(Remedy("less_capacitance", "cp", template="less capacitance: spaced turns or a thinner jacket, "
-                            "then measure Cp and check the design with it ({set})"))
+                            "then measure Cp and check with {set}"))
     elif by_both:
         reason = ("the band is too wide for one choke: its low end needs more turns than fit and its top less stray "
                   "capacitance than those turns bring")
@@ -287,7 +287,7 @@ def diagnose(spec: SizeSpec, closest: SizedDesign, ctx: SearchContext) -> Diagno
     if copies:
         relax.insert(0, copies)
     if not at_low:
-        relax.append(Remedy("other_material", template="a material that stays lossy higher up (compare materials)"))
+        relax.append(Remedy("other_material", template="a material that stays lossy higher up (see the material comparison)"))
     reach = closest.margin * spec.target_ohm
     relax.append(Remedy("lower_target", "target_ohm", reach, {"criterion": spec.criterion},
                         template=f"lower {{set}} to {reach:,.0f} Ω (what the closest design reaches)"))
@@ -312,7 +312,7 @@ def diagnose_heat(spec: SizeSpec, closest: SizedDesign, meeting: int, ctx: Searc
     more_cores = spec.max_cores * 2
     if _would_pass(spec, ctx, heat=True, max_cores=more_cores):
         relax.append(Remedy("more_cores", "max_cores", more_cores,
-                            template="more stacked cores spread the heat: {set} finds cool designs"))
+                            template=f"more stacked cores spread the heat: {{set}} {more_cores} finds cool designs"))
     else:
         relax.append(Remedy("larger_rings", "sizes", template="larger rings ({set}): more surface to shed the heat"))
     if spec.drive.mode == "voltage":

@@ -52,6 +52,9 @@ FORMATS: dict[str, Callable] = {
     "margin": _margin,
     "rise": _rise,
     "milli": lambda v: f"{v * 1e3:.2g}",
+    "percent": lambda v: f"{100 * v:.0f}",
+    "henry": lambda v: format_quantity(v, "H"),
+    "farad": lambda v: format_quantity(v, "F"),
 }
 
 
