@@ -83,6 +83,7 @@ def _resistance(option: str, text: str | None) -> float | None:
 
 
 @app.command(epilog=EPILOG)
+@o.with_design_options()
 def extract(
     files: Annotated[Optional[list[str]], typer.Argument(help="Touchstone files (.s1p … .s4p), one unit each.", show_default=False)] = None,
     method: Annotated[str, typer.Option("--method", help=f"How the sweep was made: {'|'.join(METHODS)} (auto: 1 port → reflect, 2 → series, 3/4 → mixed).", rich_help_panel=MEASURE_PANEL)] = "auto",
@@ -104,18 +105,7 @@ def extract(
     csv_out: o.CsvOut = None,
     plot_out: o.PlotOut = None,
     vs_model: Annotated[bool, typer.Option("--vs-model", help="Compare with the model of the design given by the design options.", rich_help_panel=o.DESIGN_PANEL)] = False,
-    material: o.Material = None,
-    od: o.OD = None,
-    id: o.ID = None,
-    height: o.Height = None,
-    cores: o.Cores = 1,
-    core_factor: o.CoreFactor = None,
-    window: o.Window = None,
-    turns: o.Turns = None,
-    wire: o.WireOpt = None,
-    insulation: o.Insulation = "0",
-    cable_od: o.CableOD = None,
-    cp: o.Cp = None,
+    design_options: dict = None,
 ) -> None:
     """Extract impedance (or balun balance) from network-analyser Touchstone files.
 
@@ -132,12 +122,10 @@ def extract(
     if (open_file is None) != (short_file is None):
         raise CmcheckError("--open and --short go together: compensation needs both fixture sweeps")
     design = None
-    design_given = any(v is not None for v in (material, od, id, height, core_factor, turns, cable_od, wire, cp))
+    design_given = any(design_options[k] is not None
+                       for k in ("material", "od", "id", "height", "core_factor", "turns", "cable_od", "wire", "cp"))
     if vs_model:
-        design = o.design_from_options(
-            material=material, od=od, id=id, height=height, cores=cores, core_factor=core_factor,
-            window=window, turns=turns, wire=wire, insulation=insulation, cable_od=cable_od, cp=cp,
-        )
+        design = o.design_from_options(**design_options)
     elif design_given:
         raise CmcheckError("design options (--material, --turns, …) are used only with --vs-model")
     z0_value = _resistance("--z0", z0)
@@ -151,6 +139,7 @@ def extract(
     )
     ports = _parse_ports(balanced_ports)
     inputs = paths + [p for p in (open_file, short_file) if p] + (list(legs) if legs else [])
+    material = design_options["material"]
     if material and Path(material).is_file():
         inputs.append(material)
     check_outputs([json_out, csv_out, plot_out, summary_out], inputs)

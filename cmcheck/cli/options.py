@@ -6,8 +6,10 @@ the same way everywhere (``predict``, ``extract --vs-model``, ``compare``...).
 
 from __future__ import annotations
 
+import functools
+import inspect
 from pathlib import Path
-from typing import Annotated, Optional
+from typing import Annotated, Any, Callable, Optional
 
 import typer
 
@@ -79,6 +81,57 @@ Points = Annotated[int, typer.Option("--points", help="Log-spaced frequency poin
 JsonOut = Annotated[Optional[Path], typer.Option("--json", help="Write the results as JSON to this file.", rich_help_panel=OUTPUT_PANEL)]
 CsvOut = Annotated[Optional[Path], typer.Option("--csv", help="Write the curve as CSV to this file.", rich_help_panel=OUTPUT_PANEL)]
 PlotOut = Annotated[Optional[Path], typer.Option("--plot", help="Plot to this PNG file (log frequency).", rich_help_panel=OUTPUT_PANEL)]
+
+
+#: The design options, declared once: (parameter, annotated type, default), in help order.
+#: Commands take them through :func:`with_design_options`.
+DESIGN_OPTIONS: tuple[tuple[str, Any, Any], ...] = (
+    ("material", Material, None),
+    ("od", OD, None),
+    ("id", ID, None),
+    ("height", Height, None),
+    ("cores", Cores, 1),
+    ("core_factor", CoreFactor, None),
+    ("window", Window, None),
+    ("turns", Turns, None),
+    ("wire", WireOpt, None),
+    ("insulation", Insulation, "0"),
+    ("cable_od", CableOD, None),
+    ("cp", Cp, None),
+)
+
+
+def with_design_options(*, material: bool = True) -> Callable:
+    """Give a command the design options in place of its ``design_options`` parameter.
+
+    The command receives them as one dict, ``design_options`` (parameter → text), ready for
+    :func:`design_from_options`. ``material=False`` leaves ``--material`` out (``compare``
+    takes ``--materials`` instead).
+    """
+    declared = [d for d in DESIGN_OPTIONS if material or d[0] != "material"]
+    names = [name for name, _, _ in declared]
+
+    def decorate(func: Callable) -> Callable:
+        sig = inspect.signature(func, eval_str=True)
+        params = []
+        for p in sig.parameters.values():
+            if p.name == "design_options":
+                params += [inspect.Parameter(n, inspect.Parameter.POSITIONAL_OR_KEYWORD, default=d, annotation=t)
+                           for n, t, d in declared]
+            else:
+                params.append(p)
+
+        @functools.wraps(func)
+        def command(**kwargs):
+            design = {n: kwargs.pop(n) for n in names}
+            return func(**kwargs, design_options=design)
+
+        del command.__wrapped__  # typer must read the signature below, not the original's
+        command.__signature__ = sig.replace(parameters=params)
+        command.__annotations__ = {p.name: p.annotation for p in params}
+        return command
+
+    return decorate
 
 
 def band_from_option(text: str, option: str = "--band") -> Band:

@@ -20,19 +20,9 @@ from .render import console, print_notes, show, table
 
 
 @app.command()
+@o.with_design_options()
 def predict(
-    material: o.Material = None,
-    od: o.OD = None,
-    id: o.ID = None,
-    height: o.Height = None,
-    cores: o.Cores = 1,
-    core_factor: o.CoreFactor = None,
-    window: o.Window = None,
-    turns: o.Turns = None,
-    wire: o.WireOpt = None,
-    insulation: o.Insulation = "0",
-    cable_od: o.CableOD = None,
-    cp: o.Cp = None,
+    design_options: dict = None,
     band: o.BandOpt = "1-100MHz",
     points: o.Points = 201,
     rows: Annotated[int, typer.Option("--rows", help="Rows in the printed table (the files get every point).", min=2)] = 16,
@@ -52,11 +42,9 @@ def predict(
     The model is Z = (jωL0·µ(f) + R_wire) in parallel with jωCp, with L0 = µ0·N²/C1 from the
     IEC 60205 core factor. Cp is a single-layer first estimate unless --cp is given.
     """
-    design = o.design_from_options(
-        material=material, od=od, id=id, height=height, cores=cores, core_factor=core_factor,
-        window=window, turns=turns, wire=wire, insulation=insulation, cable_od=cable_od, cp=cp,
-    )
+    design = o.design_from_options(**design_options)
     b = o.band_from_option(band)
+    material = design_options["material"]
     inputs = [material] if material and Path(material).is_file() else []
     check_outputs([json_out, csv_out, plot_out, touchstone_out], inputs)
     report = prediction_report(predict_choke(design, b, points), rows)

@@ -208,19 +208,10 @@ def size_command(
 
 
 @app.command("compare")
+@o.with_design_options(material=False)
 def compare_command(
     materials: MaterialsOpt = None,
-    od: o.OD = None,
-    id: o.ID = None,
-    height: o.Height = None,
-    cores: o.Cores = 1,
-    core_factor: o.CoreFactor = None,
-    window: o.Window = None,
-    turns: o.Turns = None,
-    wire: o.WireOpt = None,
-    insulation: o.Insulation = "0",
-    cable_od: o.CableOD = None,
-    cp: o.Cp = None,
+    design_options: dict = None,
     band: o.BandOpt = "1-100MHz",
     points: o.Points = 201,
     line_r_max: Annotated[str, typer.Option("--line-r-max", help="Largest resistance of the line's unknown common-mode impedance (common practice default).")] = f"{DEFAULT_LINE_R_MAX:g}",
@@ -239,10 +230,7 @@ def compare_command(
     make the current larger). Ranked by that worst case.
     """
     names = _material_names(materials)
-    designs = [o.design_from_options(
-        material=name, od=od, id=id, height=height, cores=cores, core_factor=core_factor, window=window,
-        turns=turns, wire=wire, insulation=insulation, cable_od=cable_od, cp=cp,
-    ) for name in names]
+    designs = [o.design_from_options(material=name, **design_options) for name in names]
     b = o.band_from_option(band)
     r_max = _parse("--line-r-max", parse_resistance, line_r_max)
     x_max = _parse("--line-x-max", parse_resistance, line_x_max)
