@@ -73,15 +73,6 @@ def _parse_percent(text: str, option: str, allow_zero: bool = False) -> float:
     return v / 100.0
 
 
-def _resistance(option: str, text: str | None) -> float | None:
-    if text is None:
-        return None
-    try:
-        return parse_resistance(text)
-    except UnitError as exc:
-        raise UnitError(f"{option}: {exc}") from None
-
-
 @app.command(epilog=EPILOG)
 @o.with_design_options()
 def extract(
@@ -128,13 +119,13 @@ def extract(
         design = o.design_from_options(**design_options)
     elif design_given:
         raise CmcheckError("design options (--material, --turns, …) are used only with --vs-model")
-    z0_value = _resistance("--z0", z0)
+    z0_value = o.parse_option("--z0", parse_resistance, z0)
     accuracy = Accuracy(floor_db=floor_db, max_error=_parse_percent(max_error, "--max-error"),
                         cal_error=_parse_percent(cal_error, "--cal-error", allow_zero=True))
     limits = Limits(
         band=o.band_from_option(band) if band else None,
-        target_r=_resistance("--target-r", target_r),
-        target_z=_resistance("--target-z", target_z),
+        target_r=o.parse_option("--target-r", parse_resistance, target_r),
+        target_z=o.parse_option("--target-z", parse_resistance, target_z),
         target_cmrr_db=target_cmrr,
     )
     ports = _parse_ports(balanced_ports)

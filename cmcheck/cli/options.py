@@ -134,19 +134,23 @@ def with_design_options(*, material: bool = True) -> Callable:
     return decorate
 
 
-def band_from_option(text: str, option: str = "--band") -> Band:
-    """Parse a ``--band`` value, naming the option in the error."""
+def parse_option(option: str, parser: Callable[[str], Any], text: str | None):
+    """``parser(text)`` (None stays None); a unit error names the option it came from."""
+    if text is None:
+        return None
     try:
-        return parse_band(text)
+        return parser(text)
     except UnitError as exc:
         raise UnitError(f"{option}: {exc}") from None
+
+
+def band_from_option(text: str, option: str = "--band") -> Band:
+    """Parse a ``--band`` value, naming the option in the error."""
+    return parse_option(option, parse_band, text)
 
 
 def _length(option: str, text: str, *, awg: bool = False) -> float:
-    try:
-        return parse_wire_diameter(text) if awg else parse_length(text)
-    except UnitError as exc:
-        raise UnitError(f"{option}: {exc}") from None
+    return parse_option(option, parse_wire_diameter if awg else parse_length, text)
 
 
 def design_from_options(

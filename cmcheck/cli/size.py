@@ -41,15 +41,6 @@ MaterialsOpt = Annotated[
 ]
 
 
-def _parse(option: str, parser, text):
-    if text is None:
-        return None
-    try:
-        return parser(text)
-    except UnitError as exc:
-        raise UnitError(f"{option}: {exc}") from None
-
-
 def _material_names(text: str | None) -> list[str]:
     if text is None:
         return list(builtin_materials())
@@ -71,8 +62,8 @@ def _conductor(wire: str | None, insulation: str, cable_od: str | None):
     if wire is not None and cable_od is not None:
         raise DesignError("give either --wire or --cable-od, not both")
     if cable_od is not None:
-        return Cable(_parse("--cable-od", parse_length, cable_od))
-    return Wire(_parse("--wire", parse_wire_diameter, wire or "1mm"), _parse("--insulation", parse_length, insulation))
+        return Cable(o.parse_option("--cable-od", parse_length, cable_od))
+    return Wire(o.parse_option("--wire", parse_wire_diameter, wire or "1mm"), o.parse_option("--insulation", parse_length, insulation))
 
 
 def _bend(text: str | None, conductor) -> float | None:
@@ -85,7 +76,7 @@ def _bend(text: str | None, conductor) -> float | None:
         except ValueError:
             raise UnitError(f"--min-bend-radius: {text!r} is neither a length (8mm) nor a multiple of the OD (1.5x)") from None
         return ratio * conductor.outer_diameter
-    return _parse("--min-bend-radius", parse_length, text)
+    return o.parse_option("--min-bend-radius", parse_length, text)
 
 
 def _predict_command(d, band, cond) -> str:
@@ -164,8 +155,8 @@ def size_command(
     if target_r is not None and target_z is not None:
         raise DesignError("give either --target-r or --target-z, not both")
     criterion = "impedance" if target_z is not None else "resistance"
-    target = _parse("--target-z", parse_resistance, target_z) if target_z is not None else (
-        _parse("--target-r", parse_resistance, target_r) if target_r is not None else DEFAULT_TARGET_OHM)
+    target = o.parse_option("--target-z", parse_resistance, target_z) if target_z is not None else (
+        o.parse_option("--target-r", parse_resistance, target_r) if target_r is not None else DEFAULT_TARGET_OHM)
     if not target > 0:
         raise DesignError(f"{'--target-z' if target_z is not None else '--target-r'} must be positive, got {target:g} Ω")
     conductor = _conductor(wire, insulation, cable_od)
@@ -176,10 +167,10 @@ def size_command(
         table_ = user if table_ is None else table_ + user
     if table_ is None:
         raise DesignError("--no-builtin-sizes needs --sizes FILE")
-    drive_opts = {"cm_voltage_v": _parse("--cm-voltage", parse_voltage, cm_voltage),
-                  "cm_current_a": _parse("--cm-current", parse_current, cm_current),
-                  "feed_impedance_ohm": _parse("--feed-impedance", parse_resistance, feed_impedance)}
-    p = _parse("--power", parse_power, power)
+    drive_opts = {"cm_voltage_v": o.parse_option("--cm-voltage", parse_voltage, cm_voltage),
+                  "cm_current_a": o.parse_option("--cm-current", parse_current, cm_current),
+                  "feed_impedance_ohm": o.parse_option("--feed-impedance", parse_resistance, feed_impedance)}
+    p = o.parse_option("--power", parse_power, power)
     drive = None
     if p is not None and not any(v is not None for v in drive_opts.values()):
         warnings.warn("--power alone gives no heat estimate: add --cm-voltage, --cm-current or --feed-impedance", CmcheckWarning)
@@ -232,8 +223,8 @@ def compare_command(
     names = _material_names(materials)
     designs = [o.design_from_options(material=name, **design_options) for name in names]
     b = o.band_from_option(band)
-    r_max = _parse("--line-r-max", parse_resistance, line_r_max)
-    x_max = _parse("--line-x-max", parse_resistance, line_x_max)
+    r_max = o.parse_option("--line-r-max", parse_resistance, line_r_max)
+    x_max = o.parse_option("--line-x-max", parse_resistance, line_x_max)
     check_outputs([json_out, plot_out], _material_files(materials))
     result = compare_designs(designs, b, points=points, line_r_max=r_max, line_x_max=x_max)
     report = comparison_report(result, generic=designs[0].describe().rsplit(",", 1)[0])

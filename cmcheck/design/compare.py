@@ -376,10 +376,5 @@ def comparison_curves(comparison: Comparison, pad: float = 3.0, points: int = 40
     band = comparison.band
     for s in comparison.scores:
         d = s.prediction.design
-        lo, hi = band.low / pad, band.high * pad
-        rng = d.material.range_hz
-        if rng is not None:
-            lo, hi = max(lo, rng[0]), min(hi, rng[1])
-        f = np.unique(np.concatenate([np.geomspace(lo, hi, points), [e for seg in band.segments for e in seg]]))
-        out.append(d.curve(f, label=s.name))
+        out.append(d.curve(band.grid(points, pad, within=d.material.range_hz), label=s.name))
     return out

@@ -5,8 +5,6 @@ from __future__ import annotations
 
 from typing import Callable
 
-import numpy as np
-
 from ..design.compare import Comparison, comparison_curves
 from ..design.diagnosis import Remedy, format_rise
 from ..design.search import SizeResult
@@ -26,12 +24,7 @@ def _core_text(design) -> str:
 def context_curve(design, band, label: str):
     """Z of ``design`` from half the band's low edge to twice its high edge (within a
     tabulated material's range), band edges on the grid: a plot shows the band in context."""
-    lo, hi = band.low / 2.0, band.high * 2.0
-    rng = design.material.range_hz
-    if rng is not None:
-        lo, hi = max(lo, rng[0]), min(hi, rng[1])
-    f = np.unique(np.concatenate([np.geomspace(lo, hi, 301), [e for seg in band.segments for e in seg]]))
-    return design.curve(f, label=label)
+    return design.curve(band.grid(301, pad=2.0, within=design.material.range_hz), label=label)
 
 
 def size_report(
