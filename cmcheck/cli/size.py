@@ -16,7 +16,6 @@ from ..model.materials import builtin_materials, get_material
 from ..reporting.files import check_outputs
 from ..reporting.outputs import write_report
 from ..reporting.size_report import comparison_report, size_report
-from ..reporting.plots import plot_curves
 from ..design.catalogue import builtin_ring_sizes, load_ring_sizes
 from ..design.search import DEFAULT_BEND_RATIO, DEFAULT_MAX_CORES, DEFAULT_TARGET_OHM, SizeSpec, size as run_size
 from ..design.heat import DEFAULT_MAX_RISE_K, Drive
