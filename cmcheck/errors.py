@@ -69,7 +69,15 @@ class DesignError(CmcheckError, ValueError):
 
 
 class CmcheckWarning(UserWarning):
-    """Doubtful but usable input or result; the CLI prints it as one ``warning: …`` line."""
+    """Doubtful but usable input or result; the CLI prints it as one ``warning: …`` line.
+
+    Like :class:`CmcheckError`, a warning about one parameter may name it in ``parameter``
+    (warn with an instance: ``warnings.warn(CmcheckWarning(msg, parameter="cp"))``).
+    """
+
+    def __init__(self, message: str = "", *, parameter: str | None = None) -> None:
+        super().__init__(message)
+        self.parameter = parameter
 
 
 __all__.append("CmcheckWarning")

@@ -34,7 +34,7 @@ EXIT_BAD_INPUT = 2
 
 def _show_warning(message, category, filename, lineno, file=None, line=None):
     if issubclass(category, CmcheckWarning):
-        text = " ".join(str(message).split())
+        text = option_message(" ".join(str(message).split()), getattr(message, "parameter", None))
         print(f"warning: {text}", file=sys.stderr)
     else:  # pragma: no cover - library warnings from numpy etc. stay quiet unless asked
         pass

@@ -330,9 +330,8 @@ def predict(design: ChokeDesign, band: Band, points: int = 201) -> Prediction:
     max_turns = design.max_turns
     if design.cp_source == "none":
         warnings.warn(
-            "no stray-capacitance estimate for a core given only by its factor; the model has no "
-            "self-resonance unless Winding.cp is given",
-            CmcheckWarning,
+            CmcheckWarning("no stray-capacitance estimate for a core given only by its factor; the model has no "
+                           "self-resonance unless cp is given", parameter="cp"),
             stacklevel=2,
         )
     f = band.grid(points)
