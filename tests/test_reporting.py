@@ -107,9 +107,12 @@ def test_compare_shows_each_materials_own_design(run_cli, tmp_path):
     data = json.loads(j.read_text())
     by_name = {m["name"]: m for m in data["materials"]}
     assert sorted(by_name) == sorted(names)
+    shown = out.split("each material's design")[1]
     for name, m in by_name.items():
         assert m["design"]["material"] == name and m["design"]["description"].endswith(name)
-        assert f"on ring 61 × 35.55 × 12.7 mm, {name}" in out
+        # The console lists each material with its own L(low f).
+        line = next(ln for ln in shown.splitlines() if ln.startswith(name + " "))
+        assert f"{m['low_frequency_inductance_h'] * 1e6:.4g} µH" in line
     # Each design is its own: L(low f) = µi·L0 differs by material (µ' at low f; IEC 60205 L0).
     inductances = {m["design"]["low_frequency_inductance_h"] for m in by_name.values()}
     assert len(inductances) == 3

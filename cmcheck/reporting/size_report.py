@@ -155,16 +155,14 @@ def comparison_report(result: Comparison, *, generic: str) -> Report:
     designs = Table((Column("material", "material"),
                      Column("low_frequency_inductance_h", "L(low f)", "H", "henry", ".6g"),
                      Column("cp_f", "Cp", "F", "farad", ".6g"),
-                     Column("self_resonance_hz", "SRF", "Hz", "hz3", ".6g"),
-                     Column("design", "design")),
+                     Column("self_resonance_hz", "SRF", "Hz", "hz3", ".6g")),
                     tuple((s.name, s.prediction.summary["low_frequency_inductance_h"], s.prediction.summary["cp_f"],
-                           s.prediction.summary["self_resonance_hz"], s.prediction.design.describe())
-                          for s in result.scores), title="designs")
+                           s.prediction.summary["self_resonance_hz"]) for s in result.scores), title="designs")
     body = [Text(title, bold=True),
             Text(f"line's own common-mode impedance: 0 ≤ R ≤ {result.line_r_max:g} Ω, |X| ≤ {result.line_x_max:g} Ω; "
                  "ranked by the worst case"),
             Table(cols, tuple(rows), title="ranking"),
-            Text("each material's design:"),
+            Text("each material's design (the core and winding above):"),
             designs]
     worst = result.scores[-1]
     notes = ["worst cut: the least the common-mode current falls, min of 20·log10|Zline + Zchoke|/|Zline| over the "
