@@ -22,15 +22,14 @@ import numpy as np
 
 from ..curve import ImpedanceCurve
 from ..errors import CmcheckError
-from .results import Cell, Report, Table
+from .results import Cell, Table
 
 __all__ = [
     "SAFETY_NOTES",
     "atomic_write",
     "staged_outputs",
     "check_outputs",
-    "curve_rows",
-    "write_report_json",
+    "table_rows",
     "write_table_csv",
     "to_jsonable",
     "write_csv",
@@ -152,16 +151,6 @@ def write_json(path, data: dict) -> None:
     atomic_write(path, lambda p: p.write_text(text + "\n", encoding="utf-8"))
 
 
-def curve_rows(curve: ImpedanceCurve) -> tuple[list[str], list[list]]:
-    """CSV header and rows of a curve with the standard column names."""
-    header = ["frequency_hz", "resistance_ohm", "reactance_ohm", "impedance_ohm", "valid"]
-    rows = [
-        [f"{f:.9g}", f"{z.real:.9g}", f"{z.imag:.9g}", f"{abs(z):.9g}", int(v)]
-        for f, z, v in zip(curve.frequency_hz, curve.z, curve.valid)
-    ]
-    return header, rows
-
-
 def write_csv(path, header: Sequence[str], rows: Iterable[Sequence], comments: Sequence[str] = ()) -> None:
     """Write a CSV file (``#`` comment lines first), atomically."""
     buf = io.StringIO()
@@ -195,11 +184,6 @@ def table_rows(table: Table) -> tuple[list[str], list[list]]:
 def write_table_csv(path, table: Table) -> None:
     """Write a report table as CSV (its comments, then column keys as header), atomically."""
     write_csv(path, *table_rows(table), comments=table.comments)
-
-
-def write_report_json(path, report: Report) -> None:
-    """Write a report's JSON document, atomically."""
-    write_json(path, report.json)
 
 
 def write_touchstone(path, curve: ImpedanceCurve, z0: float = 50.0, comments: Sequence[str] = ()) -> None:
