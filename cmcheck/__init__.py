@@ -92,7 +92,8 @@ from .design.diagnosis import Diagnosis, Remedy  # noqa: E402
 from .reporting.choke_report import prediction_report  # noqa: E402
 from .reporting.extraction_report import extraction_report  # noqa: E402
 from .reporting.results import Figure, Report, Table  # noqa: E402
-from .reporting.size_report import comparison_report, size_report  # noqa: E402
+from .reporting.compare_report import comparison_report  # noqa: E402
+from .reporting.size_report import size_report  # noqa: E402
 
 __all__ += [
     "Diagnosis",

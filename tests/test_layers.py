@@ -138,3 +138,28 @@ def test_cli_neither_plots_nor_writes_files():
                 if (name in _FORBIDDEN_CALLS and not _to_devnull(node)) or moves:
                     problems.append(f"{path.name}:{node.lineno} calls {name}")
     assert not problems, "cli/ must write files and plots through cmcheck.reporting:\n" + "\n".join(problems)
+
+
+def test_remedies_speak_parameters_in_python_and_options_on_the_command_line():
+    from cmcheck.cli.flags import option_phrase
+    from cmcheck.design.diagnosis import Diagnosis, Remedy
+
+    more = Remedy("more_cores", "max_cores", 8, template="allow more stacked cores ({set} 8)")
+    lower_r = Remedy("lower_target", "target_ohm", 900.0, {"criterion": "resistance"}, template="lower {set} to 900 Ω")
+    lower_z = Remedy("lower_target", "target_ohm", 900.0, {"criterion": "impedance"}, template="lower {set} to 900 Ω")
+    plain = Remedy("thinner_conductor", template="a thinner cable or wire")
+    d = Diagnosis("why", (more, lower_r, lower_z, plain))
+    assert d.sentences() == ["allow more stacked cores (max_cores 8)", "lower target_ohm to 900 Ω",
+                             "lower target_ohm to 900 Ω", "a thinner cable or wire"]
+    assert d.sentences(option_phrase) == ["allow more stacked cores (--max-cores 8)", "lower --target-r to 900 Ω",
+                                          "lower --target-z to 900 Ω", "a thinner cable or wire"]
+    j = d.to_dict(option_phrase)
+    assert j["remedies"][0] == {"kind": "more_cores", "parameter": "max_cores", "value": 8, "facts": {}}
+    assert j["relax"][1] == "lower --target-r to 900 Ω"
+
+
+def test_cli_no_solution_words_remedies_as_options(run_cli):
+    code, out, err = run_cli("size", "--band", "3.5-30MHz", "--target-r", "2k", "--cable-od", "5mm")
+    assert code == 1
+    relax = out.split("to relax:")[1]
+    assert "--target-r" in relax and "target_ohm" not in relax

@@ -15,7 +15,8 @@ from ..errors import CmcheckWarning, DesignError, UnitError
 from ..model.materials import builtin_materials, get_material
 from ..reporting.files import check_outputs
 from ..reporting.outputs import write_report
-from ..reporting.size_report import comparison_report, size_report
+from ..reporting.compare_report import comparison_report
+from ..reporting.size_report import size_report
 from ..design.catalogue import builtin_ring_sizes, load_ring_sizes
 from ..design.search import DEFAULT_BEND_RATIO, DEFAULT_MAX_CORES, DEFAULT_TARGET_OHM, SizeSpec, size as run_size
 from ..design.heat import DEFAULT_MAX_RISE_K, Drive
