@@ -105,3 +105,25 @@ __all__ += [
     "shunt_through_z",
     "summarize",
 ]
+
+# Results as reports (tables with units, figures, notes, JSON), rendered by cmcheck.reporting.
+from .design.compare import compare_designs  # noqa: E402
+from .design.diagnosis import Diagnosis, Remedy  # noqa: E402
+from .reporting.choke_report import prediction_report  # noqa: E402
+from .reporting.extraction_report import extraction_report  # noqa: E402
+from .reporting.results import Figure, Report, Table  # noqa: E402
+from .reporting.compare_report import comparison_report  # noqa: E402
+from .reporting.size_report import size_report  # noqa: E402
+
+__all__ += [
+    "Diagnosis",
+    "Figure",
+    "Remedy",
+    "Report",
+    "Table",
+    "compare_designs",
+    "comparison_report",
+    "extraction_report",
+    "prediction_report",
+    "size_report",
+]

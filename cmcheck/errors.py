@@ -1,8 +1,10 @@
 """Exception types of cmcheck.
 
-Every error a user can cause carries a one-line message that names the file or option
-and the problem. The command line turns them into ``error: …`` on stderr and exit
-status 2 in one place (:mod:`cmcheck.cli.app`); library callers catch
+Every error a user can cause carries a one-line message that names the file or parameter
+and the problem. An error about one parameter also carries its name in ``parameter``, so
+that the command line can say which option it was: it turns errors into ``error: …`` on
+stderr and exit status 2 in one place (:mod:`cmcheck.cli.app`), rewording parameters as
+options with one table (:mod:`cmcheck.cli.flags`). Library callers catch
 :class:`CmcheckError`.
 """
 
@@ -22,11 +24,21 @@ __all__ = [
 
 
 class CmcheckError(Exception):
-    """Base of every error cmcheck raises on purpose; the message is one line."""
+    """Base of every error cmcheck raises on purpose; the message is one line.
 
-    def __init__(self, message: str) -> None:
+    Parameters
+    ----------
+    message : str
+        Names the parameter (or file) and the problem, with values and units.
+    parameter : str, optional
+        The library parameter the error is about (``max_cores``), when it is about one;
+        the message then names it as written here.
+    """
+
+    def __init__(self, message: str, *, parameter: str | None = None) -> None:
         # One line, always: the CLI prints it after "error: ".
         super().__init__(" ".join(str(message).split()))
+        self.parameter = parameter
 
 
 class UnitError(CmcheckError, ValueError):
@@ -62,7 +74,15 @@ class IdentificationError(CmcheckError, ValueError):
 
 
 class CmcheckWarning(UserWarning):
-    """Doubtful but usable input or result; the CLI prints it as one ``warning: …`` line."""
+    """Doubtful but usable input or result; the CLI prints it as one ``warning: …`` line.
+
+    Like :class:`CmcheckError`, a warning about one parameter may name it in ``parameter``
+    (warn with an instance: ``warnings.warn(CmcheckWarning(msg, parameter="cp"))``).
+    """
+
+    def __init__(self, message: str = "", *, parameter: str | None = None) -> None:
+        super().__init__(message)
+        self.parameter = parameter
 
 
 __all__.append("CmcheckWarning")

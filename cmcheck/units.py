@@ -272,14 +272,18 @@ class Band:
             mask |= (f >= lo * (1 - 1e-12)) & (f <= hi * (1 + 1e-12))
         return mask
 
-    def grid(self, points: int = 201, pad: float = 1.0) -> np.ndarray:
+    def grid(self, points: int = 201, pad: float = 1.0, within: tuple[float, float] | None = None) -> np.ndarray:
         """Log-spaced frequencies [Hz] covering the span, widened by factor ``pad`` each side.
 
+        ``within`` (low, high) [Hz] clips the widened span, e.g. to a tabulated material's range.
         The band edges themselves are always on the grid so that in-band extremes are seen.
         """
         if points < 2:
-            raise UnitError("--points must be at least 2")
-        f = np.geomspace(self.low / pad, self.high * pad, points)
+            raise UnitError(f"points must be at least 2, got {points}", parameter="points")
+        lo, hi = self.low / pad, self.high * pad
+        if within is not None:
+            lo, hi = max(lo, within[0]), min(hi, within[1])
+        f = np.geomspace(lo, hi, points)
         edges = np.array([e for seg in self.segments for e in seg])
         return np.unique(np.concatenate([f, edges]))
 

@@ -73,8 +73,9 @@ def test_resistive_choke_closed_form(rc, r_max, x_max):
 
 
 def test_region_must_not_be_empty():
-    with pytest.raises(DesignError, match="--line-r-max"):
+    with pytest.raises(DesignError, match="^line_r_max must be ≥ 0 Ω, got -1 Ω") as err:
         worst_case_reduction(100.0, -1.0, 10.0)
+    assert err.value.parameter == "line_r_max"
     with pytest.raises(DesignError, match="both be 0"):
         worst_case_reduction(100.0, 0.0, 0.0)
 

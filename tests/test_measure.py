@@ -153,7 +153,7 @@ def test_series_with_placeholder_s12_s22():
 def test_method_needs_the_right_port_count():
     # Issue 3 acceptance: wrong port count for the method is an error naming the file.
     one = _sweep(np.full((F.size, 1, 1), 0.2 + 0j), name="one.s1p")
-    with pytest.raises(TouchstoneError, match=r"^one\.s1p: --method series needs a 2-port file"):
+    with pytest.raises(TouchstoneError, match=r"^one\.s1p: method series needs a 2-port file"):
         extract(one, "series")
     with pytest.raises(TouchstoneError, match="mixed needs a 3- or 4-port"):
         extract(one, "mixed")
@@ -421,7 +421,7 @@ def test_mixed_mode_ports_validation():
     with pytest.raises(MeasurementError, match="every port exactly once"):
         mixed_mode_matrix(np.zeros((1, 4, 4)), [(0, 1), (1, 2)])
     s = _random_s(3, 4)
-    with pytest.raises(MeasurementError, match="--balanced-ports needs 2 different ports"):
+    with pytest.raises(MeasurementError, match="balanced_ports needs 2 different ports"):
         extract(_sweep(s, name="t.s3p"), balanced_ports=(2, 2))
 
 

@@ -13,7 +13,14 @@ import pytest
 
 from cmcheck.errors import WindingError
 from cmcheck.model import selfcapacitance as sc
-from cmcheck.model.winding import stray_capacitance
+from cmcheck.model.capacitance import stray_capacitance as _stray_capacitance
+from cmcheck.model.cores import RingCore
+
+
+def stray_capacitance(od, idd, h, conductor_od, conductor_diameter, turns):
+    """The previous turn-to-turn estimate on a ring, for the no-hollow-pass comparisons."""
+    geometry = RingCore(od, idd, h).turn_geometry(conductor_od)
+    return _stray_capacitance(geometry, conductor_od, conductor_diameter, turns)
 
 EPS0 = 8.8541878128e-12
 PF = 1e-12

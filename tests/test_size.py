@@ -208,7 +208,8 @@ def test_hot_designs_are_dropped_or_flagged():
     mats = list(MATS.values())
     hot = size(SizeSpec(band, Cable(5e-3), mats, builtin_ring_sizes(), target_ohm=1000.0, drive=drive, max_rise_k=10.0))
     assert not hot.designs and hot.too_hot == hot.meeting_target > 0
-    assert "heat" in hot.diagnosis.limits and "--max-rise" in hot.diagnosis.reason
+    assert "heat" in hot.diagnosis.limits and "the 10 K limit" in hot.diagnosis.reason
+    assert "max_rise_k" in [r.parameter for r in hot.diagnosis.relax]
     kept = size(SizeSpec(band, Cable(5e-3), mats, builtin_ring_sizes(), target_ohm=1000.0, drive=drive, max_rise_k=10.0,
                          keep_hot=True))
     assert kept.designs and all(d.heat["too_hot"] for d in kept.designs)
@@ -366,7 +367,7 @@ def test_suggested_split_and_series_copies_really_work():
     mats = list(MATS.values())
     res = size(SizeSpec(band, Cable(5e-3), mats, builtin_ring_sizes(), target_ohm=2000.0))
     assert not res.designs
-    relax = " ".join(res.diagnosis.relax)
+    relax = " ".join(res.diagnosis.sentences())
     assert "split the band at" in relax or "in series on the line" in relax
     if "split the band at" in relax:
         mid = math.sqrt(3.5e6 * 30e6)

@@ -91,10 +91,10 @@ def test_heat_check_worst_frequency_and_shapes():
 @pytest.mark.parametrize(
     "kwargs, message",
     [
-        (dict(power_w=0.0, cm_voltage_v=10.0), "--power"),
-        (dict(power_w=100.0), "needs --cm-voltage"),
+        (dict(power_w=0.0, cm_voltage_v=10.0), "^power_w must be above 0 W, got 0 W"),
+        (dict(power_w=100.0), "power_w needs cm_voltage_v"),
         (dict(power_w=100.0, cm_voltage_v=10.0, cm_current_a=1.0), "exactly one"),
-        (dict(power_w=100.0, feed_impedance_ohm=-50.0), "--feed-impedance"),
+        (dict(power_w=100.0, feed_impedance_ohm=-50.0), "^feed_impedance_ohm must be above 0 Ω, got -50 Ω"),
     ],
 )
 def test_drive_refuses_impossible_input(kwargs, message):

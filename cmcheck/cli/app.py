@@ -13,6 +13,7 @@ import warnings
 import typer
 
 from ..errors import CmcheckError, CmcheckWarning
+from .flags import option_message
 
 app = typer.Typer(
     name="cmcheck",
@@ -33,7 +34,7 @@ EXIT_BAD_INPUT = 2
 
 def _show_warning(message, category, filename, lineno, file=None, line=None):
     if issubclass(category, CmcheckWarning):
-        text = " ".join(str(message).split())
+        text = option_message(" ".join(str(message).split()), getattr(message, "parameter", None))
         print(f"warning: {text}", file=sys.stderr)
     else:  # pragma: no cover - library warnings from numpy etc. stay quiet unless asked
         pass
@@ -60,7 +61,8 @@ def _run(argv: list[str] | None) -> int:
         rv = app(args=argv, prog_name="cmcheck", standalone_mode=False)
         return rv if isinstance(rv, int) else 0
     except CmcheckError as exc:
-        return _error(str(exc))
+        # The library names parameters; say which option the user gave instead.
+        return _error(option_message(str(exc), getattr(exc, "parameter", None)))
     except BrokenPipeError:
         # The reader went away (e.g. `| head`); files were written before the tables.
         try:

@@ -6,8 +6,10 @@ the same way everywhere (``predict``, ``extract --vs-model``, ``compare``...).
 
 from __future__ import annotations
 
+import functools
+import inspect
 from pathlib import Path
-from typing import Annotated, Optional
+from typing import Annotated, Any, Callable, Optional
 
 import typer
 
@@ -87,19 +89,79 @@ CsvOut = Annotated[Optional[Path], typer.Option("--csv", help="Write the curve a
 PlotOut = Annotated[Optional[Path], typer.Option("--plot", help="Plot to this PNG file (log frequency).", rich_help_panel=OUTPUT_PANEL)]
 
 
-def band_from_option(text: str, option: str = "--band") -> Band:
-    """Parse a ``--band`` value, naming the option in the error."""
+#: The design options, declared once: (parameter, annotated type, default), in help order.
+#: Commands take them through :func:`with_design_options`.
+DESIGN_OPTIONS: tuple[tuple[str, Any, Any], ...] = (
+    ("material", Material, None),
+    ("od", OD, None),
+    ("id", ID, None),
+    ("height", Height, None),
+    ("cores", Cores, 1),
+    ("core_factor", CoreFactor, None),
+    ("window", Window, None),
+    ("width", Width, None),
+    ("thickness", Thickness, None),
+    ("length", Length, None),
+    ("hole", Hole, None),
+    ("hole_spacing", HoleSpacing, None),
+    ("turns", Turns, None),
+    ("wire", WireOpt, None),
+    ("insulation", Insulation, "0"),
+    ("cable_od", CableOD, None),
+    ("cp", Cp, None),
+)
+
+
+def with_design_options(*, material: bool = True) -> Callable:
+    """Give a command the design options in place of its ``design_options`` parameter.
+
+    The command receives them as one dict, ``design_options`` (parameter → text), ready for
+    :func:`design_from_options`. ``material=False`` leaves ``--material`` out (``compare``
+    takes ``--materials`` instead).
+    """
+    declared = [d for d in DESIGN_OPTIONS if material or d[0] != "material"]
+    names = [name for name, _, _ in declared]
+
+    def decorate(func: Callable) -> Callable:
+        sig = inspect.signature(func, eval_str=True)
+        params = []
+        for p in sig.parameters.values():
+            if p.name == "design_options":
+                params += [inspect.Parameter(n, inspect.Parameter.POSITIONAL_OR_KEYWORD, default=d, annotation=t)
+                           for n, t, d in declared]
+            else:
+                params.append(p)
+
+        @functools.wraps(func)
+        def command(**kwargs):
+            design = {n: kwargs.pop(n) for n in names}
+            return func(**kwargs, design_options=design)
+
+        del command.__wrapped__  # typer must read the signature below, not the original's
+        command.__signature__ = sig.replace(parameters=params)
+        command.__annotations__ = {p.name: p.annotation for p in params}
+        return command
+
+    return decorate
+
+
+def parse_option(option: str, parser: Callable[[str], Any], text: str | None):
+    """``parser(text)`` (None stays None); a unit error names the option it came from."""
+    if text is None:
+        return None
     try:
-        return parse_band(text)
+        return parser(text)
     except UnitError as exc:
         raise UnitError(f"{option}: {exc}") from None
+
+
+def band_from_option(text: str, option: str = "--band") -> Band:
+    """Parse a ``--band`` value, naming the option in the error."""
+    return parse_option(option, parse_band, text)
 
 
 def _length(option: str, text: str, *, awg: bool = False) -> float:
-    try:
-        return parse_wire_diameter(text) if awg else parse_length(text)
-    except UnitError as exc:
-        raise UnitError(f"{option}: {exc}") from None
+    return parse_option(option, parse_wire_diameter if awg else parse_length, text)
 
 
 def design_from_options(

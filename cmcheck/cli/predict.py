@@ -10,41 +10,19 @@ import typer
 
 from ..model.choke import predict as predict_choke
 from ..model.materials import builtin_materials, get_material
-from ..reporting.files import (
-    SAFETY_NOTES,
-    check_outputs,
-    curve_rows,
-    plot_curves,
-    staged_outputs,
-    write_csv,
-    write_json,
-    write_touchstone,
-)
-from ..units import format_quantity, span_digits
+from ..reporting.choke_report import prediction_report
+from ..reporting.files import check_outputs, write_json
+from ..reporting.outputs import write_report
+from ..units import format_quantity
 from . import options as o
 from .app import app
-from .render import console, print_notes, table
+from .render import console, print_notes, show, table
 
 
 @app.command()
+@o.with_design_options()
 def predict(
-    material: o.Material = None,
-    od: o.OD = None,
-    id: o.ID = None,
-    height: o.Height = None,
-    cores: o.Cores = 1,
-    core_factor: o.CoreFactor = None,
-    window: o.Window = None,
-    width: o.Width = None,
-    thickness: o.Thickness = None,
-    length: o.Length = None,
-    hole: o.Hole = None,
-    hole_spacing: o.HoleSpacing = None,
-    turns: o.Turns = None,
-    wire: o.WireOpt = None,
-    insulation: o.Insulation = "0",
-    cable_od: o.CableOD = None,
-    cp: o.Cp = None,
+    design_options: dict = None,
     band: o.BandOpt = "1-100MHz",
     points: o.Points = 201,
     rows: Annotated[int, typer.Option("--rows", help="Rows in the printed table (the files get every point).", min=2)] = 16,
@@ -64,72 +42,15 @@ def predict(
     The model is Z = (jωL0·µ(f) + R_wire) in parallel with jωCp, with L0 = µ0·N²/C1 from the
     IEC 60205 core factor. Cp is a single-layer first estimate unless --cp is given.
     """
-    design = o.design_from_options(
-        material=material, od=od, id=id, height=height, cores=cores, core_factor=core_factor,
-        window=window, turns=turns, wire=wire, insulation=insulation, cable_od=cable_od, cp=cp,
-        width=width, thickness=thickness, length=length, hole=hole, hole_spacing=hole_spacing,
-    )
+    design = o.design_from_options(**design_options)
     b = o.band_from_option(band)
+    material = design_options["material"]
     inputs = [material] if material and Path(material).is_file() else []
     check_outputs([json_out, csv_out, plot_out, touchstone_out], inputs)
-    result = predict_choke(design, b, points)
-    s = result.summary
-    curve = result.curve
-
+    report = prediction_report(predict_choke(design, b, points), rows)
     # Files first, all or none: a closed pipe (| head) must not cost the user the results.
-    comments = [design.describe(), "predicted by cmcheck (model estimate, not a measurement)"]
-    with staged_outputs():
-        if json_out:
-            write_json(json_out, result.to_dict())
-        if csv_out:
-            write_csv(csv_out, *curve_rows(curve), comments=comments)
-        if plot_out:
-            plot_curves(plot_out, [curve], band=b, title=design.describe())
-        if touchstone_out:
-            write_touchstone(touchstone_out, curve, comments=comments)
-
-    console.print(f"[bold]{design.describe()}[/bold]")
-    core = design.core
-    core_info = [f"C1 = Σl/A = {core.c1:.5g} 1/m"]
-    if None not in (core.le, core.ae, core.ve):
-        core_info.append(f"le = {core.le * 1e3:.4g} mm, Ae = {core.ae * 1e6:.4g} mm², Ve = {core.ve * 1e9:.4g} mm³")
-    wind_info = [f"L0 = {format_quantity(design.l0, 'H')}",
-                 f"L(low f) = {format_quantity(s['low_frequency_inductance_h'], 'H')}",
-                 f"Cp = {format_quantity(s['cp_f'], 'F')} ({s['cp_source']})"]
-    if s["conductor_length_m"] is not None:
-        wind_info.append(f"conductor {s['conductor_length_m'] * 1e3:.0f} mm + leads")
-    console.print("  core: " + ", ".join(core_info))
-    console.print("  winding: " + ", ".join(wind_info))
-
-    idx = _table_rows(curve.frequency_hz, b, rows, s["min_resistance_hz"])
-    digits = span_digits(b.low, b.high)
-    t = table("frequency", "R [Ω]", "X [Ω]", "|Z| [Ω]", "R>|X|")
-    for i in idx:
-        z = curve.z[i]
-        t.add_row(format_quantity(curve.frequency_hz[i], "Hz", digits), f"{z.real:,.1f}", f"{z.imag:,.1f}",
-                  f"{abs(z):,.1f}", "yes" if z.real > abs(z.imag) else "")
-    console.print(t)
-
-    srf = s["self_resonance_hz"]
-    lo, hi = s["self_resonance_searched_hz"]
-    srf_text = (format_quantity(srf, "Hz") if srf else
-                f"none between {format_quantity(lo, 'Hz')} and {format_quantity(hi, 'Hz')}")
-    console.print(f"band {b}: min R = {s['min_resistance_ohm']:,.1f} Ω at {format_quantity(s['min_resistance_hz'], 'Hz', digits)}, "
-                  f"max R = {s['max_resistance_ohm']:,.1f} Ω at {format_quantity(s['max_resistance_hz'], 'Hz', digits)}")
-    console.print(f"self-resonance: {srf_text}; mostly resistive (R > |X|) over "
-                  f"{100 * s['resistive_fraction']:.0f} % of the band")
-    if s["max_turns_one_layer"] is not None:
-        console.print(f"one layer holds up to {s['max_turns_one_layer']} turns of this conductor")
-
-    print_notes(SAFETY_NOTES[:1])
-
-
-def _table_rows(f: np.ndarray, band, rows: int, f_min: float) -> np.ndarray:
-    """About ``rows`` log-spaced indices over the grid, plus the band edges and the R minimum."""
-    wanted = np.geomspace(f[0], f[-1], rows)
-    extra = [e for seg in band.segments for e in seg] + [f_min]
-    idx = {int(np.argmin(np.abs(np.log(f / w)))) for w in np.concatenate([wanted, extra])}
-    return np.array(sorted(idx))
+    write_report(report, json=json_out, csv={"curve": csv_out}, plot=plot_out, touchstone=touchstone_out)
+    show(report)
 
 
 @app.command()

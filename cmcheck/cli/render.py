@@ -1,4 +1,4 @@
-"""Shared rendering for the command line: one console, plain tables, notes."""
+"""The command line's consoles, and printing reports on them (see :mod:`cmcheck.reporting.text`)."""
 
 from __future__ import annotations
 
@@ -6,10 +6,10 @@ import os
 import sys
 from typing import Iterable
 
-from rich import box
 from rich.console import Console
-from rich.markup import escape
-from rich.table import Table
+
+from ..reporting.results import Report
+from ..reporting.text import render, render_notes, rich_table
 
 class _Console(Console):
     def on_broken_pipe(self) -> None:
@@ -29,18 +29,16 @@ if not console.is_terminal and "COLUMNS" not in os.environ:
 err_console = Console(stderr=True, highlight=False)
 
 
-def table(*columns: str) -> Table:
-    """A compact table; numeric-looking columns (with a unit in brackets) align right.
-
-    Headers are escaped: rich would take a unit such as "[mm]" for a style tag and drop it.
-    """
-    t = Table(box=box.SIMPLE_HEAD, pad_edge=False, show_edge=False)
-    for c in columns:
-        t.add_column(escape(c), justify="right" if "[" in c or c in {"frequency", "µi", "µ'", "µ''", "µ''/µ'"} else "left")
-    return t
+def table(*columns: str):
+    """A compact rich table (see :func:`cmcheck.reporting.text.rich_table`)."""
+    return rich_table(*columns)
 
 
 def print_notes(notes: Iterable[str]) -> None:
     """Print cautions and notes after the results, one per line, marked ``note:``."""
-    for n in notes:
-        console.print(f"note: {n}", style="dim")
+    render_notes(notes, console)
+
+
+def show(report: Report, *, notes: bool = True) -> None:
+    """Print a report on standard output."""
+    render(report, console, notes=notes)

@@ -201,6 +201,9 @@ def load_ring_sizes(path) -> CoreSizes:
     DimensionError
         Naming the file and line when the table is missing, unreadable or impossible.
     """
-    where = f"--sizes {path}"
-    table = read_table(path, where, DimensionError)
-    return replace(_core_sizes(table, where), series=_series(table.comments, f"user sizes {path}"))
+    where = f"sizes {path}"
+    try:
+        table = read_table(path, where, DimensionError)
+        return replace(_core_sizes(table, where, source=str(path)), series=_series(table.comments, f"user sizes {path}"))
+    except DimensionError as exc:
+        raise DimensionError(str(exc), parameter="sizes") from None

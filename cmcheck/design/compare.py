@@ -26,6 +26,7 @@ __all__ = [
     "DEFAULT_LINE_X_MAX",
     "Comparison",
     "MaterialScore",
+    "compare_designs",
     "compare_materials",
     "current_ratio",
     "worst_case_reduction",
@@ -151,11 +152,12 @@ def worst_case_reduction(z_choke, r_max=DEFAULT_LINE_R_MAX, x_max=DEFAULT_LINE_X
     worked in the project's DESIGN.md §4.
     """
     if not (math.isfinite(r_max) and r_max >= 0):
-        raise DesignError(f"--line-r-max must be ≥ 0, got {r_max:g} Ω")
+        raise DesignError(f"line_r_max must be ≥ 0 Ω, got {r_max:g} Ω", parameter="line_r_max")
     if not (math.isfinite(x_max) and x_max >= 0):
-        raise DesignError(f"--line-x-max must be ≥ 0, got {x_max:g} Ω")
+        raise DesignError(f"line_x_max must be ≥ 0 Ω, got {x_max:g} Ω", parameter="line_x_max")
     if r_max == 0 and x_max == 0:
-        raise DesignError("--line-r-max and --line-x-max cannot both be 0: the line impedance region is empty")
+        raise DesignError("line_r_max and line_x_max cannot both be 0 Ω: the line impedance region is empty",
+                          parameter=("line_r_max", "line_x_max"))
     zc = np.asarray(z_choke, dtype=complex)
     edges = (
         (complex(0.0, -x_max), 1j, 2.0 * x_max),  # R = 0
@@ -235,6 +237,8 @@ class MaterialScore:
             "worst_case_hz": self.worst_case_hz,
             "worst_case_line_ohm": {"re": self.worst_case_line_ohm.real, "im": self.worst_case_line_ohm.imag},
             "self_resonance_hz": self.prediction.summary["self_resonance_hz"],
+            "low_frequency_inductance_h": self.prediction.summary["low_frequency_inductance_h"],
+            "design": {"description": self.prediction.design.describe(), **self.prediction.design.to_dict()},
         }
 
 
@@ -303,18 +307,39 @@ def compare_materials(
     ----------
     Choke model as :func:`cmcheck.model.choke.predict`; worst case per :func:`worst_case_reduction`.
     """
-    materials = list(materials)
-    if not materials:
-        raise DesignError("--materials: name at least one material")
-    names = [m.name for m in materials]
+    return compare_designs([ChokeDesign(core, m, winding) for m in materials], band, points=points,
+                           line_r_max=line_r_max, line_x_max=line_x_max)
+
+
+def compare_designs(
+    designs, band: Band, *,
+    points: int = 201, line_r_max: float = DEFAULT_LINE_R_MAX, line_x_max: float = DEFAULT_LINE_X_MAX,
+) -> Comparison:
+    """Score several designs, one per material, over a band (see :func:`compare_materials`).
+
+    Parameters
+    ----------
+    designs : sequence of ChokeDesign
+        At least one; their material names must differ (a score is named by its material).
+    band, points, line_r_max, line_x_max
+        As for :func:`compare_materials`.
+
+    References
+    ----------
+    Choke model as :func:`cmcheck.model.choke.predict`; worst case per :func:`worst_case_reduction`.
+    """
+    designs = list(designs)
+    if not designs:
+        raise DesignError("materials: name at least one material", parameter="materials")
+    names = [d.material.name for d in designs]
     dup = sorted({n for n in names if names.count(n) > 1})
     if dup:
-        raise DesignError(f"--materials: {', '.join(dup)} given more than once")
+        raise DesignError(f"materials: {', '.join(dup)} given more than once", parameter="materials")
     # Validate the region before any work.
     worst_case_reduction(0j + 1.0, line_r_max, line_x_max)
     scores = []
-    for mat in materials:
-        design = ChokeDesign(core, mat, winding)
+    for design in designs:
+        mat = design.material
         pred = predict(design, band, points)
         f = pred.curve.frequency_hz
         inside = band.contains(f)
@@ -351,10 +376,5 @@ def comparison_curves(comparison: Comparison, pad: float = 3.0, points: int = 40
     band = comparison.band
     for s in comparison.scores:
         d = s.prediction.design
-        lo, hi = band.low / pad, band.high * pad
-        rng = d.material.range_hz
-        if rng is not None:
-            lo, hi = max(lo, rng[0]), min(hi, rng[1])
-        f = np.unique(np.concatenate([np.geomspace(lo, hi, points), [e for seg in band.segments for e in seg]]))
-        out.append(d.curve(f, label=s.name))
+        out.append(d.curve(band.grid(points, pad, within=d.material.range_hz), label=s.name))
     return out

@@ -195,17 +195,18 @@ class Drive:
 
     def __post_init__(self) -> None:
         if not (math.isfinite(self.power_w) and self.power_w > 0):
-            raise DesignError(f"--power must be positive, got {self.power_w:g} W")
+            raise DesignError(f"power_w must be above 0 W, got {self.power_w:g} W", parameter="power_w")
         given = [n for n in ("cm_voltage_v", "cm_current_a", "feed_impedance_ohm") if getattr(self, n) is not None]
         if len(given) != 1:
             raise DesignError(
-                "give exactly one of --cm-voltage, --cm-current or --feed-impedance with --power"
-                if given else "--power needs --cm-voltage, --cm-current or --feed-impedance to estimate heat"
+                "give exactly one of cm_voltage_v, cm_current_a or feed_impedance_ohm with power_w"
+                if given else "power_w needs cm_voltage_v, cm_current_a or feed_impedance_ohm to estimate heat",
+                parameter=("cm_voltage_v", "cm_current_a", "feed_impedance_ohm", "power_w"),
             )
         value = getattr(self, given[0])
         if not (math.isfinite(value) and value > 0):
-            opt = {"cm_voltage_v": "--cm-voltage", "cm_current_a": "--cm-current", "feed_impedance_ohm": "--feed-impedance"}
-            raise DesignError(f"{opt[given[0]]} must be positive, got {value:g}")
+            unit = {"cm_voltage_v": "V", "cm_current_a": "A", "feed_impedance_ohm": "Ω"}[given[0]]
+            raise DesignError(f"{given[0]} must be above 0 {unit}, got {value:g} {unit}", parameter=given[0])
 
     @property
     def mode(self) -> str:

@@ -25,14 +25,16 @@ from typing import Callable, Sequence
 
 import numpy as np
 
-from ..model.choke import ChokeDesign, Prediction, air_core_inductance, choke_impedance, predict
+from ..model.choke import ChokeDesign, air_core_inductance, choke_impedance, predict
 from ..model.capacitance import segment_arrays, stray_capacitance_segments
 from ..model.conductors import Conductor
 from ..model.cores import Core
 from ..errors import DesignError
 from ..model.materials import Material
 from .catalogue import CoreSizes, RingSizes, bend_radius, builtin_ring_sizes, load_ring_sizes
+from .diagnosis import Diagnosis, SearchContext, diagnose, diagnose_heat, diagnose_nothing_fits, format_rise
 from .heat import DEFAULT_MAX_RISE_K, Drive, heat_check
+from .sized import SizedDesign, SizeResult
 from ..units import Band
 from ..model.winding import Winding, max_turns_single_layer
 
@@ -48,8 +50,10 @@ __all__ = [
     "SizedDesign",
     "bend_radius",
     "builtin_ring_sizes",
+    "candidate_geometry",
     "format_rise",
     "load_ring_sizes",
+    "scan_candidates",
     "size",
 ]
 
@@ -73,7 +77,7 @@ _CHUNK_POINTS = 400_000
 
 
 # ---------------------------------------------------------------------------------------------
-# Specification and results
+# Specification (the results, SizedDesign and SizeResult, are in .sized)
 # ---------------------------------------------------------------------------------------------
 
 
@@ -133,32 +137,31 @@ class SizeSpec:
     def __post_init__(self) -> None:
         object.__setattr__(self, "materials", tuple(self.materials))
         if not (math.isfinite(self.target_ohm) and self.target_ohm > 0):
-            opt = "--target-r" if self.criterion == "resistance" else "--target-z"
-            raise DesignError(f"{opt} must be a positive resistance, got {self.target_ohm:g} Ω")
+            raise DesignError(f"target_ohm must be a positive resistance, got {self.target_ohm:g} Ω", parameter="target_ohm")
         if self.criterion not in ("resistance", "impedance"):
-            raise DesignError(f"criterion must be 'resistance' or 'impedance', got {self.criterion!r}")
+            raise DesignError(f"criterion must be 'resistance' or 'impedance', got {self.criterion!r}", parameter="criterion")
         if not self.materials:
-            raise DesignError("--materials: name at least one material")
+            raise DesignError("materials: name at least one material", parameter="materials")
         names = [m.name for m in self.materials]
         dup = sorted({n for n in names if names.count(n) > 1})
         if dup:
-            raise DesignError(f"--materials: {', '.join(dup)} given more than once")
+            raise DesignError(f"materials: {', '.join(dup)} given more than once", parameter="materials")
         if len(self.sizes) == 0:
-            raise DesignError("--sizes: the table of core sizes is empty")
+            raise DesignError("sizes: the table of core sizes is empty", parameter="sizes")
         if not (isinstance(self.max_cores, (int, np.integer)) and self.max_cores >= 1):
-            raise DesignError(f"--max-cores must be a whole number ≥ 1, got {self.max_cores!r}")
+            raise DesignError(f"max_cores must be a whole number ≥ 1, got {self.max_cores!r}", parameter="max_cores")
         if self.max_turns is not None and not (isinstance(self.max_turns, (int, np.integer)) and self.max_turns >= 1):
-            raise DesignError(f"--max-turns must be a whole number ≥ 1, got {self.max_turns!r}")
+            raise DesignError(f"max_turns must be a whole number ≥ 1, got {self.max_turns!r}", parameter="max_turns")
         if self.min_bend_radius is not None and not (math.isfinite(self.min_bend_radius) and self.min_bend_radius >= 0):
-            raise DesignError(f"--min-bend-radius must be ≥ 0, got {self.min_bend_radius!r} m")
+            raise DesignError(f"min_bend_radius must be ≥ 0 m, got {self.min_bend_radius!r} m", parameter="min_bend_radius")
         if not (math.isfinite(self.cp_factor) and self.cp_factor >= 0):
-            raise DesignError(f"--cp-factor must be ≥ 0, got {self.cp_factor:g}")
+            raise DesignError(f"cp_factor must be ≥ 0, got {self.cp_factor:g}", parameter="cp_factor")
         if not (isinstance(self.points, (int, np.integer)) and self.points >= 2):
-            raise DesignError(f"--points must be at least 2, got {self.points!r}")
+            raise DesignError(f"points must be at least 2, got {self.points!r}", parameter="points")
         if not (isinstance(self.top, (int, np.integer)) and self.top >= 1):
-            raise DesignError(f"--top must be a whole number ≥ 1, got {self.top!r}")
+            raise DesignError(f"top must be a whole number ≥ 1, got {self.top!r}", parameter="top")
         if not (math.isfinite(self.max_rise_k) and self.max_rise_k > 0):
-            raise DesignError(f"--max-rise must be positive, got {self.max_rise_k:g} K")
+            raise DesignError(f"max_rise_k must be above 0 K, got {self.max_rise_k:g} K", parameter="max_rise_k")
 
     @property
     def bend_limit(self) -> float:
@@ -170,140 +173,6 @@ class SizeSpec:
     @property
     def metric_name(self) -> str:
         return "R" if self.criterion == "resistance" else "|Z|"
-
-
-@dataclass(frozen=True, eq=False)
-class SizedDesign:
-    """One design from the search, with its figures of merit.
-
-    ``min_resistance_ohm`` (and ``min_impedance_ohm``) come from the vectorised search; the
-    self-resonance and resistive fraction from :func:`cmcheck.model.choke.predict` on the same design
-    (``prediction``), which reproduces the minimum.
-    """
-
-    design: ChokeDesign
-    kind: str
-    min_resistance_ohm: float
-    min_resistance_hz: float
-    min_impedance_ohm: float
-    min_impedance_hz: float
-    margin: float
-    max_turns_fit: int
-    bend_radius_m: float
-    prediction: Prediction
-    heat: dict | None = None
-
-    @property
-    def core(self) -> Core:
-        return self.design.core
-
-    @property
-    def self_resonance_hz(self) -> float | None:
-        return self.prediction.summary["self_resonance_hz"]
-
-    @property
-    def core_volume_m3(self) -> float:
-        return self.core.volume
-
-    def to_dict(self) -> dict:
-        d = self.design.to_dict()
-        d.update(
-            kind=self.kind,
-            min_resistance_ohm=self.min_resistance_ohm,
-            min_resistance_hz=self.min_resistance_hz,
-            min_impedance_ohm=self.min_impedance_ohm,
-            min_impedance_hz=self.min_impedance_hz,
-            margin=self.margin,
-            self_resonance_hz=self.self_resonance_hz,
-            resistive_fraction=self.prediction.summary["resistive_fraction"],
-            core_volume_m3=self.core_volume_m3,
-            core_surface_m2=self.core.surface_area,
-            max_turns_one_layer=self.max_turns_fit,
-            bend_radius_m=self.bend_radius_m,
-        )
-        if self.design.cp_source == "given":
-            d["cp_source"] = "estimated, scaled by --cp-factor"
-        if self.heat is not None:
-            d.update(self.heat)
-        return d
-
-
-@dataclass(frozen=True)
-class Diagnosis:
-    """Why no design met the target, and what to relax (one line each)."""
-
-    reason: str
-    relax: tuple[str, ...]
-    limits: tuple[str, ...] = ()
-    facts: tuple[str, ...] = ()
-
-    def to_dict(self) -> dict:
-        return {"reason": self.reason, "relax": list(self.relax), "limits": list(self.limits), "facts": list(self.facts)}
-
-
-@dataclass(frozen=True, eq=False)
-class SizeResult:
-    """Result of :func:`size`.
-
-    Attributes
-    ----------
-    spec : SizeSpec
-    designs : tuple of SizedDesign
-        The short list, cheapest first (empty when nothing passes).
-    candidates_searched : int
-    meeting_target : int
-        Candidates whose minimum over the band reaches the target.
-    too_hot : int
-        Of those, how many were dropped for exceeding ``max_rise_k``.
-    closest : SizedDesign or None
-        When nothing passes: the design nearest to passing.
-    diagnosis : Diagnosis or None
-    elapsed_s : float
-    space : dict
-        Counts describing the design space (materials, sizes, stacks, turns range).
-    """
-
-    spec: SizeSpec
-    designs: tuple[SizedDesign, ...]
-    candidates_searched: int
-    meeting_target: int
-    too_hot: int
-    closest: SizedDesign | None
-    diagnosis: Diagnosis | None
-    elapsed_s: float
-    space: dict = field(default_factory=dict)
-
-    @property
-    def passing(self) -> int:
-        return self.meeting_target - self.too_hot
-
-    @property
-    def ok(self) -> bool:
-        return bool(self.designs)
-
-    def to_dict(self) -> dict:
-        s = self.spec
-        d = {
-            "designs": [x.to_dict() for x in self.designs],
-            "candidates_searched": self.candidates_searched,
-            "meeting_target": self.meeting_target,
-            "too_hot": self.too_hot,
-            "passing": self.passing,
-            "band_hz": [list(seg) for seg in s.band.segments],
-            "criterion": s.criterion,
-            "target_ohm": s.target_ohm,
-            "ranking": "total core volume, then turns, then larger margin; cheapest per material and core size, at most two per material and per size",
-            "design_space": self.space,
-            "min_bend_radius_m": s.bend_limit,
-            "cp_factor": s.cp_factor,
-            "max_rise_k": s.max_rise_k if s.drive else None,
-            "drive": s.drive.to_dict() if s.drive else None,
-        }
-        if self.closest is not None:
-            d["closest"] = self.closest.to_dict()
-        if self.diagnosis is not None:
-            d.update(self.diagnosis.to_dict())
-        return d
 
 
 # ---------------------------------------------------------------------------------------------
@@ -332,7 +201,7 @@ def _geometry(spec: SizeSpec, *, turns_factor: float = 1.0, limits: bool = True)
     """Enumerate (size, stack, turns) and their material-independent quantities.
 
     ``turns_factor`` and ``limits=False`` widen the space for the no-solution diagnosis
-    (more turns than fit, no bend or --max-turns limit).
+    (more turns than fit, no bend or ``max_turns`` limit).
     """
     sizes = spec.sizes
     cond = spec.conductor
@@ -492,9 +361,8 @@ def size(spec: SizeSpec, progress: Callable[[int, int], None] | None = None) -> 
     scan = _scan(spec, geo, f, mus, r_per_m, progress=progress)
     total = geo.turns.size * len(mus)
     closest = diagnosis = None
-    if not scan.passing:
-        # Only a failed search needs the diagnosis (which re-runs the search itself).
-        from .diagnosis import diagnose, diagnose_heat, diagnose_nothing_fits
+    # Only a failed search needs the diagnosis, which re-runs the search through this context.
+    ctx = SearchContext(f, mus, r_per_m, candidate_geometry, scan_candidates)
     if scan.passing:
         cols = [np.concatenate([p[i] for p in scan.passing]) for i in range(8)]
         designs = _short_list(spec, geo, *cols)
@@ -503,16 +371,37 @@ def size(spec: SizeSpec, progress: Callable[[int, int], None] | None = None) -> 
         if scan.meeting and scan.coolest_hot is not None:
             _, m, g = scan.coolest_hot
             closest = _single(spec, geo, m, g, f)
-            diagnosis = diagnose_heat(spec, closest, scan.meeting, f, mus, r_per_m)
+            diagnosis = diagnose_heat(spec, closest, scan.meeting, ctx)
         elif scan.best_at is not None:
             closest = _single(spec, geo, *scan.best_at, f)
-            diagnosis = diagnose(spec, closest, f, mus, r_per_m)
+            diagnosis = diagnose(spec, closest, ctx)
         else:
             diagnosis = diagnose_nothing_fits(spec)
     return SizeResult(
         spec=spec, designs=designs, candidates_searched=total, meeting_target=scan.meeting, too_hot=scan.hot,
         closest=closest, diagnosis=diagnosis, elapsed_s=time.perf_counter() - t0, space=space,
     )
+
+
+def candidate_geometry(spec: SizeSpec, *, turns_factor: float = 1.0, limits: bool = True):
+    """The material-independent candidates of a search: (geometry, counts of the design space).
+
+    Public entry for counterfactual re-runs (:mod:`cmcheck.design.diagnosis`):
+    ``turns_factor`` > 1 allows that many times the turns that fit one layer, and
+    ``limits=False`` drops the bend and ``max_turns`` limits.
+    """
+    return _geometry(spec, turns_factor=turns_factor, limits=limits)
+
+
+def scan_candidates(spec: SizeSpec, geometry, f: np.ndarray, mus: Sequence[np.ndarray], r_per_m: np.ndarray, *,
+                    collect: bool = True):
+    """Evaluate every (material, geometry) candidate on the grid ``f`` [Hz].
+
+    Returns the scan's findings: ``best_score`` (min over the band / target of the best
+    candidate), ``best_at`` (material and geometry index), ``meeting``, ``passing``. With
+    ``collect=False`` the pass stops at the first candidate that meets the target.
+    """
+    return _scan(spec, geometry, f, mus, r_per_m, collect=collect)
 
 
 def _minimum(values: np.ndarray, f: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -593,8 +482,3 @@ def _single(spec: SizeSpec, geo: _Geometry, m: int, g: int, f: np.ndarray) -> Si
                                  hc.peak_flux_t[0], hc.peak_flux_hz[0]])
     return _make(spec, geo, m, g, float(r_min[0]), float(r_hz[0]), float(x_min[0]), float(x_hz[0]),
                  float(v / spec.target_ohm), heat)
-
-
-def format_rise(k: float) -> str:
-    """A temperature rise for people: past a few hundred kelvin the number only means "destroyed"."""
-    return f"≈ {k:.0f} K" if k < 300 else "> 300 K"

@@ -179,7 +179,7 @@ class Fixture:
         """
         method = resolve_method(method, open_sweep.n_ports, open_sweep.source)
         if method == "mixed":
-            raise MeasurementError(f"{open_sweep.source}: --open/--short apply to the series, shunt and reflect methods")
+            raise MeasurementError(f"{open_sweep.source}: fixture (open/short) compensation applies to the series, shunt and reflect methods", parameter="fixture")
         resolve_method(method, short_sweep.n_ports, short_sweep.source)
         zo = _impedance_only(open_sweep, method, open_sweep.z0 if z0 is None else z0)
         zsh = _impedance_only(short_sweep, method, short_sweep.z0 if z0 is None else z0)
@@ -227,14 +227,15 @@ def _interp_complex(f_new, f, z):
 def resolve_method(method: str, n_ports: int, source: str) -> str:
     """The method to use for a file of ``n_ports`` ports; refuses impossible combinations."""
     if method not in METHODS:
-        raise MeasurementError(f"--method {method!r}: choose one of {', '.join(METHODS)}")
+        raise MeasurementError(f"method {method!r}: choose one of {', '.join(METHODS)}", parameter="method")
     if method == "auto":
         return {1: "reflect", 2: "series"}.get(n_ports, "mixed")
     need = {"series": (2,), "shunt": (2,), "reflect": (1, 2), "mixed": (3, 4)}[method]
     if n_ports not in need:
         what = {"series": "a 2-port file", "shunt": "a 2-port file", "reflect": "a 1- or 2-port file",
-                "mixed": "a 3- or 4-port file (or --legs with two 2-port files)"}[method]
-        raise TouchstoneError(f"{source}: --method {method} needs {what}; this is a {n_ports}-port file")
+                "mixed": "a 3- or 4-port file (or legs: two 2-port files)"}[method]
+        raise TouchstoneError(f"{source}: method {method} needs {what}; this is a {n_ports}-port file",
+                              parameter=("method", "legs") if method == "mixed" else "method")
     return method
 
 
@@ -249,7 +250,7 @@ def _impedance_only(sweep: SParameters, method: str, z0: float) -> np.ndarray:
 
 def _check_s21(sweep: SParameters) -> None:
     if sweep.is_placeholder(2, 1):
-        raise TouchstoneError(f"{sweep.source}: S21 is zero at every point (not measured); use --method reflect")
+        raise TouchstoneError(f"{sweep.source}: S21 is zero at every point (not measured); use method reflect", parameter="method")
 
 
 @dataclass(frozen=True, eq=False)
@@ -334,10 +335,10 @@ def extract(
     f = sweep.frequency_hz
     if m == "mixed":
         if fixture is not None:
-            raise MeasurementError(f"{sweep.source}: --open/--short apply to the series, shunt and reflect methods")
+            raise MeasurementError(f"{sweep.source}: fixture (open/short) compensation applies to the series, shunt and reflect methods", parameter="fixture")
         return _extract_mixed(sweep, z0, accuracy, balanced_ports)
     if balanced_ports is not None:
-        raise MeasurementError(f"{sweep.source}: --balanced-ports applies to 3- and 4-port files only")
+        raise MeasurementError(f"{sweep.source}: balanced_ports applies to 3- and 4-port files only", parameter="balanced_ports")
     n, eps, tol = accuracy.noise, accuracy.cal_error, accuracy.max_error
     if m == "reflect":
         s = sweep.param(1, 1)
@@ -374,7 +375,8 @@ def _ports(balanced_ports, n_ports: int, source: str) -> tuple[int, ...]:
     want = 2 if n_ports == 3 else 4
     if len(ports) != want or len(set(ports)) != want or not all(1 <= p <= n_ports for p in ports):
         example = "2,3" if n_ports == 3 else "1,2,3,4"
-        raise MeasurementError(f"{source}: --balanced-ports needs {want} different ports of 1..{n_ports}, e.g. {example}")
+        raise MeasurementError(f"{source}: balanced_ports needs {want} different ports of 1..{n_ports}, e.g. {example}",
+                               parameter="balanced_ports")
     return ports
 
 
@@ -428,7 +430,7 @@ def extract_legs(leg_p: SParameters, leg_n: SParameters, *, z0: float | None = N
     """
     for sw in (leg_p, leg_n):
         if sw.n_ports != 2:
-            raise TouchstoneError(f"{sw.source}: --legs needs two 2-port files; this is a {sw.n_ports}-port file")
+            raise TouchstoneError(f"{sw.source}: legs needs two 2-port files; this is a {sw.n_ports}-port file", parameter="legs")
         _check_s21(sw)
     if not np.isclose(leg_p.z0, leg_n.z0) and z0 is None:
         raise MeasurementError(f"{leg_n.source}: reference impedance differs from {leg_p.source}")

@@ -55,11 +55,12 @@ class Limits:
     target_cmrr_db: float | None = None
 
     def __post_init__(self) -> None:
-        for name, v in (("--target-r", self.target_r), ("--target-z", self.target_z)):
+        for name, v in (("target_r", self.target_r), ("target_z", self.target_z)):
             if v is not None and not (math.isfinite(v) and v > 0):
-                raise MeasurementError(f"{name} {v:g}: the target must be a positive impedance")
+                raise MeasurementError(f"{name} must be a positive impedance, got {v:g} Ω", parameter=name)
         if self.target_cmrr_db is not None and not math.isfinite(self.target_cmrr_db):
-            raise MeasurementError("--target-cmrr must be a finite number of dB")
+            raise MeasurementError(f"target_cmrr_db must be a finite number of dB, got {self.target_cmrr_db}",
+                                   parameter="target_cmrr_db")
 
     @property
     def any(self) -> bool:
@@ -174,9 +175,9 @@ def _verdict(ex: Extraction, limits: Limits, out: dict, n_valid: int, f: np.ndar
         fails.append("no point in the band")
     wants_z = limits.target_r is not None or limits.target_z is not None
     if wants_z and ex.curve is None:
-        fails.append("no impedance from this measurement for --target-r/--target-z")
+        fails.append("no impedance from this measurement for an R or |Z| target")
     if limits.target_cmrr_db is not None and ex.balance is None:
-        fails.append("no CMRR from this measurement for --target-cmrr")
+        fails.append("no CMRR from this measurement for a CMRR target")
     checks = (("target_r", "min_resistance_ohm", "R", "Ω"), ("target_z", "min_impedance_ohm", "|Z|", "Ω"),
               ("target_cmrr_db", "min_cmrr_db", "CMRR", "dB"))
     for attr, key, what, unit in checks:
@@ -259,7 +260,7 @@ def model_error(ex: Extraction, model_z, band: Band | None = None) -> dict:
         ``reactance_ohm`` and ``impedance_ohm`` at every measured frequency.
     """
     if ex.curve is None:
-        raise MeasurementError(f"{ex.source}: --vs-model needs an impedance (series, shunt, reflect or a 4-port)")
+        raise MeasurementError(f"{ex.source}: a comparison with a model needs an impedance (series, shunt, reflect or a 4-port)")
     zm = np.asarray(model_z, dtype=complex)
     f = ex.frequency_hz
     sel = ex.valid & (band.contains(f) if band is not None else True) & np.isfinite(zm)
@@ -290,6 +291,8 @@ class FileResult:
     extraction: Extraction | None = None
     summary: Summary | None = None
     error: str | None = None
+    #: The parameter the error is about (:attr:`cmcheck.errors.CmcheckError.parameter`).
+    error_parameter: str | tuple[str, ...] | None = None
 
 
 def evaluate_files(
@@ -331,7 +334,7 @@ def evaluate_files(
             ex = extract(sweep, method, z0=z0, accuracy=accuracy, fixture=fixture, balanced_ports=balanced_ports)
             r = FileResult(str(p), ex, summarize(ex, limits))
         except CmcheckError as exc:
-            r = FileResult(str(p), error=str(exc))
+            r = FileResult(str(p), error=str(exc), error_parameter=exc.parameter)
         results.append(r)
         if on_done is not None:
             on_done(r)
@@ -342,7 +345,7 @@ def evaluate_files(
             ex = extract_legs(a, b, z0=z0, accuracy=accuracy)
             r = FileResult(name, ex, summarize(ex, limits))
         except CmcheckError as exc:
-            r = FileResult(name, error=str(exc))
+            r = FileResult(name, error=str(exc), error_parameter=exc.parameter)
         results.append(r)
         if on_done is not None:
             on_done(r)
@@ -360,7 +363,7 @@ def exit_status(results: Iterable[FileResult]) -> int:
 
 
 def result_to_dict(r: FileResult) -> dict:
-    """One entry of ``--json`` ``results``, with the project's standard keys."""
+    """One entry of a JSON document's ``results`` list, with the project's standard keys."""
     if r.error is not None:
         return {"file": r.path, "error": r.error}
     ex = r.extraction

@@ -394,9 +394,9 @@ def _reference_impedance(z0: np.ndarray, name: str) -> float:
     if z.size == 0:
         return 50.0
     if np.any(z.imag != 0) or np.any(~np.isfinite(z)) or np.any(z.real <= 0):
-        raise TouchstoneError(f"{name}: reference impedance must be real and positive; give --z0 to override")
+        raise TouchstoneError(f"{name}: reference impedance must be real and positive; give z0 to override", parameter="z0")
     if np.ptp(z.real) > 1e-9 * z.real[0]:
-        raise TouchstoneError(f"{name}: ports have different reference impedances; give --z0 if they are all equal")
+        raise TouchstoneError(f"{name}: ports have different reference impedances; give z0 if they are all equal", parameter="z0")
     return float(z.real[0])
 
 

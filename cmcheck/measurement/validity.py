@@ -119,11 +119,11 @@ class Accuracy:
 
     def __post_init__(self) -> None:
         if not (np.isfinite(self.floor_db) and self.floor_db < 0):
-            raise MeasurementError(f"--floor-db {self.floor_db:g}: the noise floor must be below 0 dB")
+            raise MeasurementError(f"floor_db must be below 0 dB (the noise floor), got {self.floor_db:g} dB", parameter="floor_db")
         if not (0 <= self.cal_error < 1):
-            raise MeasurementError(f"calibration error {self.cal_error:g} must be between 0 and 1")
+            raise MeasurementError(f"cal_error must be from 0 to below 1 (a fraction of S), got {self.cal_error:g}", parameter="cal_error")
         if not (0 < self.max_error <= 10):
-            raise MeasurementError(f"--max-error {100 * self.max_error:g} % must be above 0")
+            raise MeasurementError(f"max_error must be above 0 and at most 10 (a fraction), got {self.max_error:g}", parameter="max_error")
 
     @property
     def noise(self) -> float:

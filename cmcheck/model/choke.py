@@ -320,9 +320,8 @@ def predict(design: ChokeDesign, band: Band, points: int = 201) -> Prediction:
     max_turns = design.max_turns
     if design.cp_source == "none":
         warnings.warn(
-            f"no stray-capacitance estimate: the core lacks {' and '.join(design.core.missing) or 'a turn geometry'}; "
-            "the model has no self-resonance unless Winding.cp is given",
-            CmcheckWarning,
+            CmcheckWarning(f"no stray-capacitance estimate: the core lacks {' and '.join(design.core.missing) or 'a turn geometry'}; "
+                           "the model has no self-resonance unless cp is given", parameter="cp"),
             stacklevel=2,
         )
     f = band.grid(points)

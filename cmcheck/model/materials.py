@@ -160,7 +160,7 @@ class Material:
         return self.model.range_hz if isinstance(self.model, Tabulated) else None
 
     def to_dict(self) -> dict:
-        """JSON-ready summary (for ``cmcheck materials --json``)."""
+        """JSON-ready summary: name, family, description, provenance and initial permeability."""
         d = {
             "name": self.name,
             "family": self.family,

@@ -1,4 +1,4 @@
-"""Writing results: JSON, CSV, Touchstone and plots, each written whole or not at all.
+"""Writing results: JSON, CSV and Touchstone files, each written whole or not at all (plots: :mod:`.plots`).
 
 Every writer renders into a temporary file beside the target and renames it into place,
 so an error never leaves a half-written output, and a target that is also one of the inputs
@@ -20,16 +20,17 @@ from typing import Callable, Iterable, Sequence
 
 import numpy as np
 
-from ..curve import ImpedanceCurve, true_runs
+from ..curve import ImpedanceCurve
 from ..errors import CmcheckError
+from .results import Cell, Table
 
 __all__ = [
     "SAFETY_NOTES",
     "atomic_write",
     "staged_outputs",
     "check_outputs",
-    "curve_rows",
-    "plot_curves",
+    "table_rows",
+    "write_table_csv",
     "to_jsonable",
     "write_csv",
     "write_json",
@@ -150,16 +151,6 @@ def write_json(path, data: dict) -> None:
     atomic_write(path, lambda p: p.write_text(text + "\n", encoding="utf-8"))
 
 
-def curve_rows(curve: ImpedanceCurve) -> tuple[list[str], list[list]]:
-    """CSV header and rows of a curve with the standard column names."""
-    header = ["frequency_hz", "resistance_ohm", "reactance_ohm", "impedance_ohm", "valid"]
-    rows = [
-        [f"{f:.9g}", f"{z.real:.9g}", f"{z.imag:.9g}", f"{abs(z):.9g}", int(v)]
-        for f, z, v in zip(curve.frequency_hz, curve.z, curve.valid)
-    ]
-    return header, rows
-
-
 def write_csv(path, header: Sequence[str], rows: Iterable[Sequence], comments: Sequence[str] = ()) -> None:
     """Write a CSV file (``#`` comment lines first), atomically."""
     buf = io.StringIO()
@@ -170,6 +161,29 @@ def write_csv(path, header: Sequence[str], rows: Iterable[Sequence], comments: S
     w.writerows(rows)
     text = buf.getvalue()
     atomic_write(path, lambda p: p.write_text(text, encoding="utf-8"))
+
+
+def _csv_cell(value, fmt: str):
+    if isinstance(value, Cell):
+        value = value.value
+    if value is None:
+        return ""
+    if fmt == "text":
+        return value
+    if fmt == "int":
+        return int(value)
+    return format(value, fmt)
+
+
+def table_rows(table: Table) -> tuple[list[str], list[list]]:
+    """CSV header (column keys) and rows of a report table, each number in its column's ``csv_format``."""
+    fmts = [c.csv_format for c in table.columns]
+    return list(table.keys), [[_csv_cell(v, f) for v, f in zip(row, fmts)] for row in table.rows]
+
+
+def write_table_csv(path, table: Table) -> None:
+    """Write a report table as CSV (its comments, then column keys as header), atomically."""
+    write_csv(path, *table_rows(table), comments=table.comments)
 
 
 def write_touchstone(path, curve: ImpedanceCurve, z0: float = 50.0, comments: Sequence[str] = ()) -> None:
@@ -192,71 +206,3 @@ def write_touchstone(path, curve: ImpedanceCurve, z0: float = 50.0, comments: Se
             os.replace(produced if produced.exists() else Path(out), tmp)
 
     atomic_write(path, render)
-
-
-def plot_curves(
-    path,
-    curves: Sequence[ImpedanceCurve],
-    *,
-    band=None,
-    title: str = "",
-    quantities: Sequence[str] = ("R", "X", "|Z|"),
-    target_ohm: float | None = None,
-) -> None:
-    """Plot R, X and |Z| of one or more curves against log-frequency into a PNG, atomically.
-
-    Invalid points (``curve.valid`` False) are drawn over a grey background span;
-    the band, if given, is shaded.
-    """
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    fig, ax = plt.subplots(figsize=(8, 4.8), dpi=110)
-    styles = {"R": "-", "X": "--", "|Z|": ":"}
-    for i, c in enumerate(curves):
-        color = f"C{i}"
-        prefix = f"{c.label}: " if (c.label and len(curves) > 1) else ""
-        data = {"R": c.resistance, "X": c.reactance, "|Z|": c.magnitude}
-        for q in quantities:
-            y = np.where(c.valid, data[q], np.nan)
-            ax.plot(c.frequency_hz, y, styles[q], color=color if len(curves) > 1 else {"R": "C0", "X": "C1", "|Z|": "C2"}[q],
-                    label=f"{prefix}{q}")
-        if not c.valid.all():
-            inv = ~c.valid
-            ax.plot(c.frequency_hz, np.where(inv, c.resistance, np.nan), "-", color="0.6", lw=1)
-            _grey_spans(ax, c.frequency_hz, inv)
-    if band is not None:
-        for lo, hi in band.segments:
-            ax.axvspan(lo, hi, color="C2", alpha=0.08, lw=0)
-    if target_ohm is not None:
-        ax.axhline(target_ohm, color="k", lw=0.8, ls="-.", label=f"target {target_ohm:g} Ω")
-    ax.set_xscale("log")
-    _frequency_axis(ax)
-    ax.set_ylabel("impedance [Ω]")
-    ax.axhline(0, color="k", lw=0.5)
-    ax.grid(True, which="both", alpha=0.3)
-    ax.legend(fontsize=8, ncol=2 if len(curves) > 1 else 1)
-    if title:
-        ax.set_title(title, fontsize=10)
-    fig.tight_layout()
-    atomic_write(path, lambda p: fig.savefig(p, format="png"))
-    plt.close(fig)
-
-
-def _frequency_axis(ax) -> None:
-    """Label a log-frequency axis in kHz/MHz/GHz with plain numbers, not powers of ten."""
-    from matplotlib.ticker import FuncFormatter, LogLocator
-
-    lo, hi = ax.get_xlim()
-    scale, unit = next(((s, u) for s, u in ((1e9, "GHz"), (1e6, "MHz"), (1e3, "kHz")) if hi >= 10 * s), (1.0, "Hz"))
-    ax.xaxis.set_major_locator(LogLocator(base=10, subs=(1.0, 2.0, 5.0)))
-    ax.xaxis.set_minor_formatter(FuncFormatter(lambda v, _: ""))
-    ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _: f"{v / scale:g}"))
-    ax.set_xlabel(f"frequency [{unit}]")
-
-
-def _grey_spans(ax, f: np.ndarray, mask: np.ndarray) -> None:
-    for a, b in true_runs(mask):
-        ax.axvspan(f[a], f[max(a, b - 1)], color="0.85", alpha=0.6, lw=0)

@@ -1,0 +1,48 @@
+"""Writing a report's files together: JSON, CSV tables, the plot and a Touchstone file."""
+
+from __future__ import annotations
+
+import os
+from typing import Mapping
+
+from .files import staged_outputs, write_json, write_table_csv, write_touchstone
+from .plots import plot_figure
+from .results import Report
+
+__all__ = ["write_report"]
+
+PathLike = str | os.PathLike
+
+
+def write_report(
+    report: Report,
+    *,
+    json: PathLike | None = None,
+    csv: Mapping[str, PathLike | None] | None = None,
+    plot: PathLike | None = None,
+    touchstone: PathLike | None = None,
+) -> None:
+    """Write the asked outputs of ``report`` all together or none (see :func:`staged_outputs`).
+
+    Parameters
+    ----------
+    json : path, optional
+        The report's JSON document (skipped when the report has none).
+    csv : mapping of table name to path, optional
+        Tables of ``report.data`` to write as CSV (a name the report lacks is skipped).
+    plot : path, optional
+        The report's first figure as PNG (skipped when it has none).
+    touchstone : path, optional
+        The first figure's first impedance curve as a series two-port ``.s2p`` file.
+    """
+    with staged_outputs():
+        if json and report.json is not None:
+            write_json(json, report.json)
+        for name, path in (csv or {}).items():
+            if path and name in report.data:
+                write_table_csv(path, report.data[name])
+        if plot and report.figures:
+            plot_figure(plot, report.figures[0])
+        if touchstone:
+            fig = report.figures[0]
+            write_touchstone(touchstone, fig.curves[0], comments=report.data["curve"].comments)
