@@ -119,7 +119,9 @@ def parse_v1(data: bytes, rank: int):
     f = table[:, 0].copy()
     if rank == 2 and np.any(f[1:] < f[:-1]):
         return None  # scikit-rf would take what follows for noise data
-    return f * _UNITS[unit], _to_s(np.ascontiguousarray(table[:, 1:]), form, rank), _z0(resistance, f.size, rank)
+    with np.errstate(all="ignore"):  # as scikit-rf under our filter: overflow to inf is judged later
+        s = _to_s(np.ascontiguousarray(table[:, 1:]), form, rank)
+    return f * _UNITS[unit], s, _z0(resistance, f.size, rank)
 
 
 def _to_s(raw: np.ndarray, form: str, rank: int) -> np.ndarray:
