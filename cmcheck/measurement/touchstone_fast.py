@@ -28,11 +28,11 @@ __all__ = ["parse_v1"]
 _UNITS = {"hz": 1.0, "khz": 1e3, "mhz": 1e6, "ghz": 1e9}
 _DEFAULTS = ["ghz", "s", "ma", "r", "50"]  # scikit-rf fills a short option line with these
 
-# Line breaks other than \n and \r\n (str.splitlines breaks at them; scikit-rf does not) and
-# the simulator comments scikit-rf gives a meaning ("! gamma", "! port impedance", "! port[n]").
-_DOUBTFUL = re.compile(rb"[\v\f\x1c-\x1e]|\r(?!\n)|\xc2\x85|\xe2\x80[\xa8\xa9]|(?im:^\s*!\s*(?:gamma|port))")
+# Line breaks other than \n and \r\n (str.splitlines breaks at them; scikit-rf does not).
+_ODD_BREAKS = (b"\v", b"\f", b"\x1c", b"\x1d", b"\x1e", b"\xc2\x85", b"\xe2\x80\xa8", b"\xe2\x80\xa9")
+# Simulator comments scikit-rf gives a meaning ("! gamma", "! port impedance", "! port[n]").
+_SIMULATOR = re.compile(rb"!\s*(?:gamma|port)", re.IGNORECASE)
 _COMMENT = re.compile(rb"![^\n]*")
-_OPTION = re.compile(rb"(?m)^[ \t]*#[^\n]*")
 # Everything a data body may hold; other bytes (letters of nan/inf, brackets…) are left to scikit-rf.
 _NUMERIC = b"0123456789.+-eE \t\r\n"
 
@@ -60,22 +60,27 @@ def parse_v1(data: bytes, rank: int):
     ``!`` to the end of the line, one frequency per data block, at most four complex pairs a
     line, each matrix row of a 3- or 4-port on a new line.
     """
-    if _DOUBTFUL.search(data):
+    if any(x in data for x in _ODD_BREAKS) or data.count(b"\r") != data.count(b"\r\n"):
         return None
     if b"!" in data:
+        if _SIMULATOR.search(data):
+            return None
         data = _COMMENT.sub(b"", data)
-    m = _OPTION.search(data)
-    if m is None:
+    hash_at = data.find(b"#")
+    if hash_at < 0:
         toks: list[str] = []
         body = data
     else:
-        if data[: m.start()].strip():
-            return None  # numbers before the option line
+        line_start = data.rfind(b"\n", 0, hash_at) + 1
+        line_end = data.find(b"\n", hash_at)
+        line_end = len(data) if line_end < 0 else line_end
+        if data[:line_start].strip() or data[line_start:hash_at].strip(b" \t"):
+            return None  # numbers before the option line, or '#' inside a data line
         try:
-            toks = m.group().decode("ascii").strip().lower()[1:].split()
+            toks = data[hash_at:line_end].decode("ascii").strip().lower()[1:].split()
         except UnicodeDecodeError:
             return None
-        body = data[m.end() :]
+        body = data[line_end:]
     if b"#" in body or body.translate(None, _NUMERIC):
         return None
     opts = toks + _DEFAULTS[len(toks) :]
