@@ -23,7 +23,7 @@ import numpy as np
 
 from ..errors import CmcheckWarning, TouchstoneError
 from ..inputs import read_capped
-from .touchstone_fast import parse_v1
+from .touchstone_fast import _ODD_TEXT, parse_v1
 
 __all__ = ["SParameters", "read_touchstone", "parse_touchstone_text", "MAX_FILE_BYTES"]
 
@@ -147,7 +147,8 @@ def parse_touchstone_text(text: str, name: str, *, z0: float | None = None) -> S
     of, goes through the line-by-line checks and scikit-rf's parser.
     """
     ext = Path(name).suffix.lower()
-    parsed = parse_v1(text.encode("utf-8"), _EXTENSIONS[ext]) if ext in _EXTENSIONS else None
+    plain = ext in _EXTENSIONS and not any(c in text for c in _ODD_TEXT)
+    parsed = parse_v1(text.encode("utf-8"), _EXTENSIONS[ext]) if plain else None
     if parsed is None:
         parsed = _parse_reference(text, name)
     return _finish(parsed, name, z0)

@@ -17,6 +17,7 @@ which is the reference and explains errors.
 
 from __future__ import annotations
 
+import io
 import re
 import warnings
 
@@ -28,11 +29,13 @@ __all__ = ["parse_v1"]
 _UNITS = {"hz": 1.0, "khz": 1e3, "mhz": 1e6, "ghz": 1e9}
 _DEFAULTS = ["ghz", "s", "ma", "r", "50"]  # scikit-rf fills a short option line with these
 
-# Line breaks other than \n and \r\n (str.splitlines breaks at them; scikit-rf does not).
-_ODD_BREAKS = (b"\v", b"\f", b"\x1c", b"\x1d", b"\x1e", b"\xc2\x85", b"\xe2\x80\xa8", b"\xe2\x80\xa9")
+# Line breaks other than \n and \r\n: str.splitlines (the reference path's line checks) breaks
+# at them, scikit-rf does not. A comment stops at them, so that they stay in the text examined.
+_ODD_BREAKS = b"\v\f\x1c\x1d\x1e"
+_ODD_TEXT = ("\x85", "\u2028", "\u2029")
 # Simulator comments scikit-rf gives a meaning ("! gamma", "! port impedance", "! port[n]").
 _SIMULATOR = re.compile(rb"!\s*(?:gamma|port)", re.IGNORECASE)
-_COMMENT = re.compile(rb"![^\n]*")
+_COMMENT = re.compile(rb"![^\n\v\f\x1c-\x1e]*")
 # Everything a data body may hold; other bytes (letters of nan/inf, brackets…) are left to scikit-rf.
 _NUMERIC = b"0123456789.+-eE \t\r\n"
 
@@ -60,28 +63,42 @@ def parse_v1(data: bytes, rank: int):
     ``!`` to the end of the line, one frequency per data block, at most four complex pairs a
     line, each matrix row of a 3- or 4-port on a new line.
     """
-    if any(x in data for x in _ODD_BREAKS) or data.count(b"\r") != data.count(b"\r\n"):
-        return None
-    if b"!" in data:
+    if b"\r" in data and data.count(b"\r") != data.count(b"\r\n"):
+        return None  # bare carriage returns
+    hash_at = data.find(b"#")
+    line_start = data.rfind(b"\n", 0, hash_at) + 1
+    if hash_at < 0 or data[line_start:hash_at].strip(b" \t"):
+        # No option line, or a '#' in a comment first: remove every comment, then look again.
         if _SIMULATOR.search(data):
             return None
         data = _COMMENT.sub(b"", data)
-    hash_at = data.find(b"#")
-    if hash_at < 0:
-        toks: list[str] = []
-        body = data
-    else:
+        hash_at = data.find(b"#")
         line_start = data.rfind(b"\n", 0, hash_at) + 1
+        if hash_at >= 0 and data[line_start:hash_at].strip(b" \t"):
+            return None  # '#' inside a data line
+    if hash_at < 0:
+        header, option, body = b"", b"#", data
+    else:
         line_end = data.find(b"\n", hash_at)
         line_end = len(data) if line_end < 0 else line_end
-        if data[:line_start].strip() or data[line_start:hash_at].strip(b" \t"):
-            return None  # numbers before the option line, or '#' inside a data line
-        try:
-            toks = data[hash_at:line_end].decode("ascii").strip().lower()[1:].split()
-        except UnicodeDecodeError:
+        header, option, body = data[:line_start], data[hash_at:line_end], data[line_end:]
+    # Before the option line only comments and blank lines; the option line up to a comment.
+    if b"!" in header:
+        if _SIMULATOR.search(header):
             return None
-        body = data[line_end:]
+        header = _COMMENT.sub(b"", header)
+    if header.strip(b" \t\r\n") or any(c in option for c in _ODD_BREAKS):
+        return None
+    option = option.partition(b"!")[0]
+    if b"!" in body:
+        if _SIMULATOR.search(body):
+            return None
+        body = _COMMENT.sub(b"", body)
     if b"#" in body or body.translate(None, _NUMERIC):
+        return None
+    try:
+        toks = option.decode("ascii").strip().lower()[1:].split()
+    except UnicodeDecodeError:
         return None
     opts = toks + _DEFAULTS[len(toks) :]
     unit, param, form = opts[0], opts[1], opts[2]
@@ -93,25 +110,43 @@ def parse_v1(data: bytes, rank: int):
         return None
 
     per_point = 1 + 2 * rank * rank
+    table = _read_one_point_a_line(body, per_point) if rank <= 2 else _read_wrapped(body, per_point)
+    if table is None:
+        return None
+    f = table[:, 0].copy()
+    if rank == 2 and np.any(f[1:] < f[:-1]):
+        return None  # scikit-rf would take what follows for noise data
+    with np.errstate(all="ignore"):  # as scikit-rf under our filter: overflow to inf is judged later
+        s = _to_s(np.ascontiguousarray(table[:, 1:]), form, rank)
+    return f * _UNITS[unit], s, _z0(resistance, f.size, rank)
+
+
+def _read_one_point_a_line(body: bytes, per_point: int):
+    """The numbers of a 1- or 2-port body as a table, or None unless every line holds one point."""
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")  # "no data" is a warning
+        try:
+            # numpy's reader refuses a line whose count of numbers differs from the others.
+            table = np.loadtxt(io.BytesIO(body), dtype=float, comments=None, ndmin=2)
+        except (ValueError, UserWarning):
+            return None
+    return table if table.shape[1] == per_point else None
+
+
+def _read_wrapped(body: bytes, per_point: int):
+    """The numbers of a 3- or 4-port body as a table, or None when scikit-rf would split it otherwise."""
     counts = np.fromiter(map(len, map(bytes.split, body.split(b"\n"))), np.int64)
     counts = counts[counts > 0]
     if counts.size == 0:
         return None
     first = np.cumsum(counts) - counts  # index of each data line's first number
     n_numbers = int(first[-1] + counts[-1])
-    if n_numbers % per_point:
+    # scikit-rf takes a line's first number as a frequency when the numbers read so far fill
+    # whole points, which holds at a point's start and just after a lone frequency: every
+    # point must start a line, and no line may start right after its frequency.
+    starts = np.arange(0, n_numbers, per_point)
+    if n_numbers % per_point or np.any(first % per_point == 1) or np.setdiff1d(starts, first).size:
         return None
-    if rank <= 2:
-        # One point a line, exactly (a 1- or 2-port point never wraps).
-        if np.any(counts != per_point):
-            return None
-    else:
-        # scikit-rf takes a line's first number as a frequency when the numbers read so far
-        # fill whole points, which holds at a point's start and just after a lone frequency:
-        # every point must start a line, and no line may start right after its frequency.
-        starts = np.arange(0, n_numbers, per_point)
-        if np.any(first % per_point == 1) or np.setdiff1d(starts, first, assume_unique=True).size:
-            return None
     with warnings.catch_warnings():
         warnings.simplefilter("error")  # numpy warns (and stops) at text it cannot read
         try:
@@ -120,13 +155,7 @@ def parse_v1(data: bytes, rank: int):
             return None
     if values.size != n_numbers:
         return None  # a token such as "1-2" read as two numbers
-    table = values.reshape(-1, per_point)
-    f = table[:, 0].copy()
-    if rank == 2 and np.any(f[1:] < f[:-1]):
-        return None  # scikit-rf would take what follows for noise data
-    with np.errstate(all="ignore"):  # as scikit-rf under our filter: overflow to inf is judged later
-        s = _to_s(np.ascontiguousarray(table[:, 1:]), form, rank)
-    return f * _UNITS[unit], s, _z0(resistance, f.size, rank)
+    return values.reshape(-1, per_point)
 
 
 def _to_s(raw: np.ndarray, form: str, rank: int) -> np.ndarray:
