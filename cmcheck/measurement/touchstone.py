@@ -1,14 +1,18 @@
 """Safe reading of Touchstone files from a network analyser, and validation of what they hold.
 
-The text is read here as bytes and handed to scikit-rf's Touchstone parser as a string, so a
-crafted file can never be unpickled (``skrf.Network(path)`` tries ``pickle.load`` first; the
-:class:`skrf.io.touchstone.Touchstone` class only parses text, and we never give it a path).
-scikit-rf accepts several kinds of damaged input without a word — a truncated last line, a
-line missing numbers, NaN, a 1-port body in a ``.s2p``, frequencies that go backwards (which in
-a 2-port file it silently turns into "noise data") — so the line structure is checked before
-parsing and the numbers after it. Every problem is a one-line
-:class:`~cmcheck.errors.TouchstoneError` that names the file; doubtful but usable data gives a
-:class:`~cmcheck.errors.CmcheckWarning`.
+The file is read through :func:`cmcheck.inputs.read_capped` (regular files only, at most
+:data:`MAX_FILE_BYTES`), as bytes. Plain version-1 files (S-parameters, RI/MA/DB, one point a
+line for 1 and 2 ports, the specification's row wrapping for 3 and 4) are parsed by the
+vectorised reader :mod:`cmcheck.measurement.touchstone_fast`, which returns bit for bit what
+scikit-rf returns for them; everything else, and anything that reader is unsure of, is handed
+to scikit-rf's Touchstone parser as a string, so a crafted file can never be unpickled
+(``skrf.Network(path)`` tries ``pickle.load`` first; the :class:`skrf.io.touchstone.Touchstone`
+class only parses text, and we never give it a path). scikit-rf accepts several kinds of
+damaged input without a word — a truncated last line, a line missing numbers, NaN, a 1-port
+body in a ``.s2p``, frequencies that go backwards (which in a 2-port file it silently turns
+into "noise data") — so on that path the line structure is checked before parsing and the
+numbers after it. Every problem is a one-line :class:`~cmcheck.errors.TouchstoneError` that
+names the file; doubtful but usable data gives a :class:`~cmcheck.errors.CmcheckWarning`.
 """
 
 from __future__ import annotations
@@ -97,8 +101,9 @@ def read_touchstone(path: str | os.PathLike, *, z0: float | None = None) -> SPar
     Raises
     ------
     TouchstoneError
-        Unreadable, binary (e.g. a pickle), empty, truncated or malformed file, no finite
-        point, fewer than two points, frequencies out of order.
+        Missing, not a regular file (folder, FIFO, device), larger than
+        :data:`MAX_FILE_BYTES`, unreadable, binary (e.g. a pickle), empty, truncated or
+        malformed file, no finite point, fewer than two points, frequencies out of order.
 
     Warns
     -----

@@ -1,13 +1,15 @@
 """A vectorised reader for the plain Touchstone version-1 files instruments write.
 
 scikit-rf's parser (:class:`skrf.io.touchstone.Touchstone`) reads a file line by line in
-Python; for batches of thousands of sweeps that loop is the whole cost of an extraction. This
+Python; for batches of thousands of sweeps that loop is most of the cost of an extraction. This
 module reads the common case — S-parameters, RI/MA/DB, Hz…GHz, 1 to 4 ports, one option line,
 ``!`` comments anywhere — on the bytes with numpy, and returns exactly what
 :mod:`cmcheck.measurement.touchstone` gets from scikit-rf for the same file: the same
-frequencies, S array and reference impedances, bit for bit (the numbers are parsed by
-numpy's correctly rounded decimal conversion, the same result as Python's ``float``, and the
-format conversions are scikit-rf's expressions, in the same order).
+frequencies, S array and reference impedances, bit for bit: numpy's text readers
+(``loadtxt``, ``fromstring``) convert decimals to the nearest double, as Python's ``float``
+does for scikit-rf, and the format conversions are scikit-rf's expressions, in its order.
+The decimal conversion itself (about a third of a microsecond a number) is now most of the
+cost.
 
 Anything else — version 2 keywords, noise data, other parameters than S, NaN or unusual
 tokens, a second option line, a simulator's port comments, a line layout scikit-rf would read
