@@ -149,6 +149,9 @@ DOUBTFUL = {
     "bare CR line ends": "# Hz S RI R 50\r1 0.1 0\r2 0.1 0\r",
     "port impedance comment": "# Hz S RI R 50\n! Port Impedance 50 0\n1 0.1 0\n2 0.1 0\n",
     "unknown unit": "# THz S RI R 50\n1 0.1 0\n2 0.1 0\n",
+    "vertical tab in option line": "# Hz\vS RI R 50\n1 0.1 0\n2 0.1 0\n",
+    "form feed in a comment": "! a\fb\n# Hz S RI R 50\n1 0.1 0\n2 0.1 0 ! x\fy\n",
+    "hash in a data line": "# Hz S RI R 50\n1 0.1 0 # 1\n2 0.1 0\n",
 }
 
 
