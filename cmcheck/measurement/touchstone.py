@@ -124,7 +124,7 @@ def read_touchstone(path: str | os.PathLike, *, z0: float | None = None) -> SPar
 
 def parse_touchstone_bytes(data: bytes, name: str, *, z0: float | None = None) -> SParameters:
     """Validate and parse the bytes of a Touchstone file named ``name`` (see :func:`read_touchstone`)."""
-    if not data.strip():
+    if not data or data.isspace():
         raise TouchstoneError(f"{name}: empty file")
     if data[:1] == b"\x80":
         # Protocol 2+ pickles start with the PROTO opcode; say so, and never load it.
@@ -360,6 +360,8 @@ def _reference_impedance(z0: np.ndarray, name: str) -> float:
     z = np.asarray(z0, dtype=complex).reshape(-1)
     if z.size == 0:
         return 50.0
+    if np.all(z == z[0]):
+        z = z[:1]  # one value per point and port, usually all the same: judge it once
     if np.any(z.imag != 0) or np.any(~np.isfinite(z)) or np.any(z.real <= 0):
         raise TouchstoneError(f"{name}: reference impedance must be real and positive; give --z0 to override")
     if np.ptp(z.real) > 1e-9 * z.real[0]:
