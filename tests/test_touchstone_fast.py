@@ -62,7 +62,7 @@ def touchstone_files(draw):
             [
                 f"# {unit} S {form} R {r}",
                 f"#{unit} s {form} r {r}",
-                f"  #\t{unit}  S\t{form} R {r}   ! trailing comment",
+                f"#\t{unit}  S\t{form} R {r}   ! trailing comment",
                 f"# {unit} S {form}",  # R defaults to 50
                 f"# {unit}",  # S MA R 50
                 "#",  # GHz S MA R 50
@@ -149,6 +149,9 @@ DOUBTFUL = {
     "bare CR line ends": "# Hz S RI R 50\r1 0.1 0\r2 0.1 0\r",
     "port impedance comment": "# Hz S RI R 50\n! Port Impedance 50 0\n1 0.1 0\n2 0.1 0\n",
     "unknown unit": "# THz S RI R 50\n1 0.1 0\n2 0.1 0\n",
+    # scikit-rf before 2.0 reads these differently from later versions: left to the one installed.
+    "indented option line": "  # Hz S RI R 50\n1 0.1 0\n2 0.1 0\n",
+    "comment after a short option line": "# Hz S RI ! x\n1 0.1 0\n2 0.1 0\n",
     "vertical tab in option line": "# Hz\vS RI R 50\n1 0.1 0\n2 0.1 0\n",
     "form feed in a comment": "! a\fb\n# Hz S RI R 50\n1 0.1 0\n2 0.1 0 ! x\fy\n",
     "hash in a data line": "# Hz S RI R 50\n1 0.1 0 # 1\n2 0.1 0\n",

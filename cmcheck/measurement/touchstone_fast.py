@@ -67,41 +67,44 @@ def parse_v1(data: bytes, rank: int):
     """
     if b"\r" in data and data.count(b"\r") != data.count(b"\r\n"):
         return None  # bare carriage returns
+    # The option line must start its line: scikit-rf before 2.0 reads an indented one as data.
     hash_at = data.find(b"#")
     line_start = data.rfind(b"\n", 0, hash_at) + 1
-    if hash_at < 0 or data[line_start:hash_at].strip(b" \t"):
+    if hash_at < 0 or hash_at != line_start:
         # No option line, or a '#' in a comment first: remove every comment, then look again.
         if _SIMULATOR.search(data):
             return None
         data = _COMMENT.sub(b"", data)
         hash_at = data.find(b"#")
         line_start = data.rfind(b"\n", 0, hash_at) + 1
-        if hash_at >= 0 and data[line_start:hash_at].strip(b" \t"):
-            return None  # '#' inside a data line
+        if hash_at >= 0 and hash_at != line_start:
+            return None  # an indented option line, or '#' inside a data line
     if hash_at < 0:
         header, option, body = b"", b"#", data
     else:
         line_end = data.find(b"\n", hash_at)
         line_end = len(data) if line_end < 0 else line_end
         header, option, body = data[:line_start], data[hash_at:line_end], data[line_end:]
-    # Before the option line only comments and blank lines; the option line up to a comment.
+    # Before the option line only comments and blank lines.
     if b"!" in header:
         if _SIMULATOR.search(header):
             return None
         header = _COMMENT.sub(b"", header)
     if header.strip(b" \t\r\n") or any(c in option for c in _ODD_BREAKS):
         return None
-    option = option.partition(b"!")[0]
     if b"!" in body:
         if _SIMULATOR.search(body):
             return None
         body = _COMMENT.sub(b"", body)
-    if b"#" in body or body.translate(None, _NUMERIC):
-        return None
+    if body.translate(None, _NUMERIC):
+        return None  # letters (nan, inf), a second option line, keywords...
+    option, bang, _ = option.partition(b"!")
     try:
         toks = option.decode("ascii").strip().lower()[1:].split()
     except UnicodeDecodeError:
         return None
+    if bang and len(toks) != 5:
+        return None  # scikit-rf before 2.0 reads a comment's words as missing options
     opts = toks + _DEFAULTS[len(toks) :]
     unit, param, form = opts[0], opts[1], opts[2]
     if unit not in _UNITS or param != "s" or form not in ("ri", "ma", "db") or len(opts) != 5:
