@@ -152,6 +152,7 @@ DOUBTFUL = {
     # scikit-rf before 2.0 reads these differently from later versions: left to the one installed.
     "indented option line": "  # Hz S RI R 50\n1 0.1 0\n2 0.1 0\n",
     "comment after a short option line": "# Hz S RI ! x\n1 0.1 0\n2 0.1 0\n",
+    "same, after a '#' in a comment": "! rev #3\n# Hz S RI ! x\n1 0.1 0\n2 0.1 0\n",
     "vertical tab in option line": "# Hz\vS RI R 50\n1 0.1 0\n2 0.1 0\n",
     "form feed in a comment": "! a\fb\n# Hz S RI R 50\n1 0.1 0\n2 0.1 0 ! x\fy\n",
     "hash in a data line": "# Hz S RI R 50\n1 0.1 0 # 1\n2 0.1 0\n",

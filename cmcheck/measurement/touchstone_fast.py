@@ -38,6 +38,7 @@ _ODD_TEXT = ("\x85", "\u2028", "\u2029")
 # Simulator comments scikit-rf gives a meaning ("! gamma", "! port impedance", "! port[n]").
 _SIMULATOR = re.compile(rb"!\s*(?:gamma|port)", re.IGNORECASE)
 _COMMENT = re.compile(rb"![^\n\v\f\x1c-\x1e]*")
+_OPTION_LINE = re.compile(rb"(?m)^#[^\n]*")
 # Everything a data body may hold; other bytes (letters of nan/inf, brackets…) are left to scikit-rf.
 _NUMERIC = b"0123456789.+-eE \t\r\n"
 
@@ -70,10 +71,13 @@ def parse_v1(data: bytes, rank: int):
     # The option line must start its line: scikit-rf before 2.0 reads an indented one as data.
     hash_at = data.find(b"#")
     line_start = data.rfind(b"\n", 0, hash_at) + 1
+    commented = False  # whether the option line has a comment
     if hash_at < 0 or hash_at != line_start:
         # No option line, or a '#' in a comment first: remove every comment, then look again.
         if _SIMULATOR.search(data):
             return None
+        m = _OPTION_LINE.search(data)
+        commented = m is not None and b"!" in m.group()
         data = _COMMENT.sub(b"", data)
         hash_at = data.find(b"#")
         line_start = data.rfind(b"\n", 0, hash_at) + 1
@@ -103,7 +107,7 @@ def parse_v1(data: bytes, rank: int):
         toks = option.decode("ascii").strip().lower()[1:].split()
     except UnicodeDecodeError:
         return None
-    if bang and len(toks) != 5:
+    if (bang or commented) and len(toks) != 5:
         return None  # scikit-rf before 2.0 reads a comment's words as missing options
     opts = toks + _DEFAULTS[len(toks) :]
     unit, param, form = opts[0], opts[1], opts[2]
