@@ -8,11 +8,14 @@ from __future__ import annotations
 
 import csv
 from dataclasses import dataclass
-from pathlib import Path
 
 from .errors import CmcheckError
+from .inputs import read_capped
 
-__all__ = ["Table", "parse_table", "read_table"]
+__all__ = ["Table", "parse_table", "read_table", "MAX_TABLE_BYTES"]
+
+#: Larger tables are refused: a material curve or a size list is a few kilobytes.
+MAX_TABLE_BYTES = 16 * 1024 * 1024
 
 
 @dataclass(frozen=True)
@@ -38,14 +41,10 @@ def parse_table(text: str, where: str, error: type[CmcheckError]) -> Table:
 
 
 def read_table(path, where: str, error: type[CmcheckError]) -> Table:
-    """Read and parse a table file, naming ``where`` in every error."""
-    p = Path(path)
-    if p.is_dir():
-        raise error(f"{where}: is a folder, expected a CSV file")
-    if not p.is_file():
-        raise error(f"{where}: not found")
+    """Read and parse a table file (a regular file of at most :data:`MAX_TABLE_BYTES`), naming ``where`` in every error."""
+    data = read_capped(path, where, error, cap=MAX_TABLE_BYTES)
     try:
-        text = p.read_text(encoding="utf-8-sig")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise error(f"{where}: cannot be read ({exc.__class__.__name__})") from None
+        text = data.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        raise error(f"{where}: cannot be read (not UTF-8 text)") from None
     return parse_table(text, where, error)

@@ -131,11 +131,11 @@ def test_bad_files_give_one_line_naming_the_file(tmp_path, case):
 
 def test_missing_file_and_directory(tmp_path):
     # common practice, no published source: the message names the path.
-    with pytest.raises(TouchstoneError, match="no such file"):
+    with pytest.raises(TouchstoneError, match="not found"):
         read_touchstone(tmp_path / "missing.s1p")
     d = tmp_path / "dir.s1p"
     d.mkdir()
-    with pytest.raises(TouchstoneError, match="is a directory"):
+    with pytest.raises(TouchstoneError, match="is a folder, expected a regular file"):
         read_touchstone(d)
 
 
@@ -197,7 +197,7 @@ def test_latin1_comment_is_read(tmp_path):
     assert read_touchstone(p).frequency_hz.size == 2
 
 
-# --- the quick path and the line-by-line scan agree; damage never escapes as a crash ----------
+# --- damage never escapes as a crash ----------------------------------------------------------
 
 def _two_port_text(n=12):
     f = np.linspace(1e6, 30e6, n)
@@ -205,19 +205,6 @@ def _two_port_text(n=12):
     v = rng.normal(size=(n, 8)) * 0.3
     body = "".join(f"{fi:.9g} " + " ".join(f"{x:.9g}" for x in row) + "\n" for fi, row in zip(f, v))
     return "! made for a test\n# Hz S RI R 50\n" + body
-
-
-def test_quick_path_equals_line_scan():
-    # Self-consistency of our two parsing paths (both over scikit-rf's parser).
-    from cmcheck.measurement import touchstone as ts
-
-    text = _two_port_text()
-    fast = ts._fast_parse(text, "q.s2p", ".s2p")
-    assert fast is not None
-    lines = text.splitlines()
-    slow = ts._parse_with_skrf(lines, ts._scan(lines, "q.s2p", ".s2p"), "q.s2p", ".s2p")
-    for a, b in zip(fast, slow):
-        assert np.array_equal(a, b)
 
 
 from hypothesis import HealthCheck, given, settings  # noqa: E402

@@ -1,14 +1,18 @@
 """Safe reading of Touchstone files from a network analyser, and validation of what they hold.
 
-The text is read here as bytes and handed to scikit-rf's Touchstone parser as a string, so a
-crafted file can never be unpickled (``skrf.Network(path)`` tries ``pickle.load`` first; the
-:class:`skrf.io.touchstone.Touchstone` class only parses text, and we never give it a path).
-scikit-rf accepts several kinds of damaged input without a word — a truncated last line, a
-line missing numbers, NaN, a 1-port body in a ``.s2p``, frequencies that go backwards (which in
-a 2-port file it silently turns into "noise data") — so the line structure is checked before
-parsing and the numbers after it. Every problem is a one-line
-:class:`~cmcheck.errors.TouchstoneError` that names the file; doubtful but usable data gives a
-:class:`~cmcheck.errors.CmcheckWarning`.
+The file is read through :func:`cmcheck.inputs.read_capped` (regular files only, at most
+:data:`MAX_FILE_BYTES`), as bytes. Plain version-1 files (S-parameters, RI/MA/DB, one point a
+line for 1 and 2 ports, the specification's row wrapping for 3 and 4) are parsed by the
+vectorised reader :mod:`cmcheck.measurement.touchstone_fast`, which returns bit for bit what
+scikit-rf returns for them; everything else, and anything that reader is unsure of, is handed
+to scikit-rf's Touchstone parser as a string, so a crafted file can never be unpickled
+(``skrf.Network(path)`` tries ``pickle.load`` first; the :class:`skrf.io.touchstone.Touchstone`
+class only parses text, and we never give it a path). scikit-rf accepts several kinds of
+damaged input without a word — a truncated last line, a line missing numbers, NaN, a 1-port
+body in a ``.s2p``, frequencies that go backwards (which in a 2-port file it silently turns
+into "noise data") — so on that path the line structure is checked before parsing and the
+numbers after it. Every problem is a one-line :class:`~cmcheck.errors.TouchstoneError` that
+names the file; doubtful but usable data gives a :class:`~cmcheck.errors.CmcheckWarning`.
 """
 
 from __future__ import annotations
@@ -22,10 +26,13 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import CmcheckWarning, TouchstoneError
+from ..inputs import read_capped
+from .touchstone_fast import _ODD_TEXT, parse_v1
 
 __all__ = ["SParameters", "read_touchstone", "parse_touchstone_text", "MAX_FILE_BYTES"]
 
-#: Larger files are refused before reading: a 30 000-point 4-port sweep is about 20 MB.
+#: Larger files are refused (at most this many bytes plus one are read): a 30 000-point 4-port
+#: sweep is about 20 MB.
 MAX_FILE_BYTES = 256 * 1024 * 1024
 
 _EXTENSIONS = {".s1p": 1, ".s2p": 2, ".s3p": 3, ".s4p": 4}
@@ -94,8 +101,9 @@ def read_touchstone(path: str | os.PathLike, *, z0: float | None = None) -> SPar
     Raises
     ------
     TouchstoneError
-        Unreadable, binary (e.g. a pickle), empty, truncated or malformed file, no finite
-        point, fewer than two points, frequencies out of order.
+        Missing, not a regular file (folder, FIFO, device), larger than
+        :data:`MAX_FILE_BYTES`, unreadable, binary (e.g. a pickle), empty, truncated or
+        malformed file, no finite point, fewer than two points, frequencies out of order.
 
     Warns
     -----
@@ -110,30 +118,24 @@ def read_touchstone(path: str | os.PathLike, *, z0: float | None = None) -> SPar
     row on a new line for three or more ports.
     """
     name = str(path)
-    p = Path(path)
-    try:
-        size = p.stat().st_size
-        if size > MAX_FILE_BYTES:
-            raise TouchstoneError(f"{name}: file is {size / 1e6:.0f} MB, larger than any sweep cmcheck reads")
-        data = p.read_bytes()
-    except IsADirectoryError:
-        raise TouchstoneError(f"{name}: is a directory, expected a Touchstone file") from None
-    except FileNotFoundError:
-        raise TouchstoneError(f"{name}: no such file") from None
-    except OSError as exc:
-        raise TouchstoneError(f"{name}: cannot read ({exc.strerror or exc})") from None
+    data = read_capped(path, name, TouchstoneError, cap=MAX_FILE_BYTES)
     return parse_touchstone_bytes(data, name, z0=z0)
 
 
 def parse_touchstone_bytes(data: bytes, name: str, *, z0: float | None = None) -> SParameters:
     """Validate and parse the bytes of a Touchstone file named ``name`` (see :func:`read_touchstone`)."""
-    if not data.strip():
+    if not data or data.isspace():
         raise TouchstoneError(f"{name}: empty file")
     if data[:1] == b"\x80":
         # Protocol 2+ pickles start with the PROTO opcode; say so, and never load it.
         raise TouchstoneError(f"{name}: binary data that looks like a Python pickle, not a Touchstone text file; refused")
     if b"\x00" in data:
         raise TouchstoneError(f"{name}: binary data, not a Touchstone text file")
+    rank = _EXTENSIONS.get(Path(name).suffix.lower())
+    if rank is not None and data.isascii():
+        parsed = parse_v1(data, rank)
+        if parsed is not None:
+            return _finish(parsed, name, z0)
     try:
         text = data.decode("utf-8-sig")
     except UnicodeDecodeError:
@@ -143,68 +145,33 @@ def parse_touchstone_bytes(data: bytes, name: str, *, z0: float | None = None) -
 
 
 def parse_touchstone_text(text: str, name: str, *, z0: float | None = None) -> SParameters:
-    """Validate and parse Touchstone text; ``name`` gives the extension and names the file in messages."""
+    """Validate and parse Touchstone text; ``name`` gives the extension and names the file in messages.
+
+    Plain version-1 files take the vectorised reader (:mod:`.touchstone_fast`), which returns
+    what scikit-rf returns for them; everything else, and every file that reader is unsure
+    of, goes through the line-by-line checks and scikit-rf's parser.
+    """
     ext = Path(name).suffix.lower()
-    parsed = _fast_parse(text, name, ext)
+    plain = ext in _EXTENSIONS and not any(c in text for c in _ODD_TEXT)
+    parsed = parse_v1(text.encode("utf-8"), _EXTENSIONS[ext]) if plain else None
     if parsed is None:
-        lines = text.splitlines()
-        layout = _scan(lines, name, ext)
-        parsed = _parse_with_skrf(lines, layout, name, ext)
+        parsed = _parse_reference(text, name)
+    return _finish(parsed, name, z0)
+
+
+def _parse_reference(text: str, name: str):
+    """Parse with scikit-rf after checking the line structure it does not (the reference path)."""
+    ext = Path(name).suffix.lower()
+    lines = text.splitlines()
+    layout = _scan(lines, name, ext)
+    return _parse_with_skrf(lines, layout, name, ext)
+
+
+def _finish(parsed, name: str, z0: float | None) -> SParameters:
     f, s, file_z0 = parsed
     z0_used = _reference_impedance(file_z0, name) if z0 is None else _check_z0(z0, name)
     f, s, n_nonfinite, n_overlap = _clean_sweep(f, s, name)
     return SParameters(name, f, s, z0_used, n_overlap, n_nonfinite)
-
-
-# First bytes that can start a data line: digits, sign, point, and "nan"/"inf".
-_DATA_START = np.zeros(256, bool)
-_DATA_START[np.frombuffer(b"0123456789+-.nNiI", np.uint8)] = True
-_OTHER_START = np.zeros(256, bool)
-_OTHER_START[np.frombuffer(b"!#\r\n", np.uint8)] = True
-
-
-def _count_data_lines(text: str) -> int | None:
-    """Number of data lines of a plain version-1 file, or None when the quick count is unsure.
-
-    Only the first byte of each line is looked at (vectorised): that is exact for files whose
-    lines start at the first column, which is what instruments write; anything else (leading
-    blanks, keywords, stray text) is left to the line-by-line scan.
-    """
-    b = np.frombuffer(text.encode("utf-8", "replace"), np.uint8)
-    starts = b[np.concatenate(([0], np.flatnonzero(b[:-1] == 10) + 1))]
-    data = _DATA_START[starts]
-    if not np.all(data | _OTHER_START[starts]):
-        return None
-    return int(np.count_nonzero(data))
-
-
-def _fast_parse(text: str, name: str, ext: str):
-    """Parse a plain 1- or 2-port file in one pass, verified by its count of data lines.
-
-    scikit-rf takes one frequency per data line of a 1- or 2-port file; a line with too few or
-    too many numbers shifts that alignment and loses a point, so agreement of the two counts
-    (with scikit-rf's own check that the numbers fill whole points) shows the line structure is
-    sound. Any disagreement, or a parser error, goes to the line-by-line scan, which explains it.
-    """
-    if ext not in (".s1p", ".s2p"):
-        return None
-    n_data = _count_data_lines(text)
-    if not n_data:
-        return None
-    fid = io.StringIO(text)
-    fid.name = name
-    from skrf.io.touchstone import Touchstone  # heavy import kept off the CLI start-up path
-
-    try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            ts = Touchstone(fid)
-    except Exception:  # noqa: BLE001 - the slow path finds and words the problem
-        return None
-    f = np.asarray(ts.f, dtype=float)
-    if f.size != n_data or ts.noise is not None:
-        return None
-    return f, np.asarray(ts.s, dtype=complex), np.asarray(ts.z0)
 
 
 @dataclass
@@ -393,6 +360,8 @@ def _reference_impedance(z0: np.ndarray, name: str) -> float:
     z = np.asarray(z0, dtype=complex).reshape(-1)
     if z.size == 0:
         return 50.0
+    if np.all(z == z[0]):
+        z = z[:1]  # one value per point and port, usually all the same: judge it once
     if np.any(z.imag != 0) or np.any(~np.isfinite(z)) or np.any(z.real <= 0):
         raise TouchstoneError(f"{name}: reference impedance must be real and positive; give z0 to override", parameter="z0")
     if np.ptp(z.real) > 1e-9 * z.real[0]:
