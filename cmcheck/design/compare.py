@@ -21,6 +21,9 @@ from ..errors import DesignError
 from ..units import Band
 from ..model.winding import Winding
 
+# numpy 2 renamed trapz to trapezoid; numpy 1.x only has the old name.
+_trapezoid = getattr(np, "trapezoid", None) or np.trapz
+
 __all__ = [
     "DEFAULT_LINE_R_MAX",
     "DEFAULT_LINE_X_MAX",
@@ -270,7 +273,7 @@ def _log_mean(f, values, band: Band) -> float:
         m = Band.single(lo, hi).contains(f)
         if m.sum() < 2:
             continue
-        area += np.trapezoid(values[m], lf[m])
+        area += _trapezoid(values[m], lf[m])
         total += lf[m][-1] - lf[m][0]
     return float(area / total) if total > 0 else float(np.mean(values[band.contains(f)]))
 

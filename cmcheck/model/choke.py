@@ -20,6 +20,9 @@ from .materials import Material
 from ..units import Band
 from .winding import MU0, Cable, Winding, check_fit, stray_capacitance, turn_length
 
+# numpy 2 renamed trapz to trapezoid; numpy 1.x only has the old name.
+_trapezoid = getattr(np, "trapezoid", None) or np.trapz
+
 __all__ = [
     "ChokeDesign",
     "Prediction",
@@ -372,6 +375,6 @@ def _resistive_fraction(f, z, band: Band) -> float:
         if m.sum() < 2:
             continue
         # Trapezoid rule in log-frequency so an uneven grid does not bias the fraction.
-        covered += np.trapezoid(ok[m], lf[m])
+        covered += _trapezoid(ok[m], lf[m])
         total += lf[m][-1] - lf[m][0]
     return float(covered / total) if total > 0 else 0.0
