@@ -60,7 +60,7 @@ def test_builtin_table_content():
 
 
 def test_snoek_ordering():
-    # Snoek's law (DESIGN.md §4): (µi − 1)·fr ≈ const, so higher-µ NiZn loses µ' at lower f.
+    # Snoek's law (J. L. Snoek, Physica 14, 1948): (µi − 1)·fr ≈ const, so higher-µ NiZn loses µ' at lower f.
     mats = builtin_materials()
     f = np.geomspace(1e5, 1e9, 400)
 
