@@ -91,7 +91,13 @@ def test_impossible_rings(od, id_, h, match):
 def test_factor_core():
     # A two-hole core given by its core factor: A/l = 0.00154 m → Σl/A ≈ 649 1/m
     # (measurer's figure, ../shared/real-measurements/SOURCES.md).
+    # Two turns through it have L0 = µ0·N²/C1 = µ0·4·0.00154 m = 7.74 nH per unit permeability [1].
+    from cmcheck.model.choke import ChokeDesign
+    from cmcheck.model.materials import builtin_materials
+    from cmcheck.model.winding import Winding, Wire
+
     core = FactorCore(1 / 0.00154)
-    assert core.c1 == pytest.approx(649.35, rel=1e-4)
+    design = ChokeDesign(core, builtin_materials()["nizn-800"], Winding(2, Wire(0.5e-3)))
+    assert design.l0 == pytest.approx(4e-7 * math.pi * 4 * 0.00154, rel=1e-12)
     with pytest.raises(DimensionError):
         FactorCore(-1.0)
