@@ -31,8 +31,8 @@ def flat_csv(tmp_path, mu_p, mu_pp):
 
 
 def test_worked_winding_impedance(tmp_path):
-    # DESIGN.md §4 worked example (IEV 221-03-06, IEC 60205): N = 10 on 60/35/12.5 mm,
-    # µ = 300 − j200 at 10 MHz → Z = 1693.31 + j2539.96 Ω.
+    # Z = jωL0·µ with L0 = µ0N²/C1 (IEV 221-03-06, IEC 60205:2016), evaluated for N = 10 on
+    # 60/35/12.5 mm, µ = 300 − j200 at 10 MHz → Z = 1693.31 + j2539.96 Ω (rounded).
     mat = flat_csv(tmp_path, 300, 200)
     design = ChokeDesign(RingCore(60e-3, 35e-3, 12.5e-3), mat, Winding(10, Wire(0.5e-3), cp=0.0))
     z = winding_impedance(10e6, design.l0, mat.permeability(10e6))
@@ -55,8 +55,10 @@ def test_flat_csv_material_gives_jwL0mu(tmp_path):
     f = np.geomspace(1e6, 1e8, 9)
     w = 2 * np.pi * f
     z = choke_impedance(f, design.l0, mat.permeability(f))
-    assert np.allclose(z.real, w * design.l0 * 35.0, rtol=1e-12)
-    assert np.allclose(z.imag, w * design.l0 * 120.0, rtol=1e-12)
+    # L0 = µ0·N²·h·ln(OD/ID)/(2π) (IEC 60205 ring-core C1), evaluated here, not taken from the design.
+    l0 = MU0 * 4**2 * 10e-3 * math.log(25 / 15) / (2 * math.pi)
+    assert np.allclose(z.real, w * l0 * 35.0, rtol=1e-12)
+    assert np.allclose(z.imag, w * l0 * 120.0, rtol=1e-12)
 
 
 @given(k=st.integers(1, 6))
@@ -74,7 +76,9 @@ def test_lossless_self_resonance(tmp_path):
     mat = Material("lossless", Debye(200.0, 1e30))
     cp = 3.3e-12
     design = ChokeDesign(RingCore(25e-3, 15e-3, 10e-3), mat, Winding(6, Wire(0.5e-3), cp=cp))
-    expected = float(lossless_self_resonance(design.l0 * 200.0, cp))
+    l0 = MU0 * 6**2 * 10e-3 * math.log(25 / 15) / (2 * math.pi)  # IEC 60205 ring-core C1
+    expected = 1 / (2 * math.pi * math.sqrt(l0 * 200.0 * cp))
+    assert float(lossless_self_resonance(l0 * 200.0, cp)) == pytest.approx(expected, rel=1e-12)
     # Wire loss shifts the zero crossing by far less than 1e-6 relative here.
     got = predict(design, Band.single(expected / 5, expected * 5)).summary["self_resonance_hz"]
     assert got == pytest.approx(expected, rel=1e-6)

@@ -18,7 +18,7 @@ from cmcheck.model.winding import MU0, Cable, Winding
 
 
 def test_resistive_5k_choke_gives_14_15_db():
-    # DESIGN.md §4: a 5 kΩ resistive choke gives ≥ 14.15 dB for any line with R ≤ 100 Ω,
+    # Series circuit, |Zl/(Zl + Zc)| (Kirchhoff): a 5 kΩ resistive choke gives ≥ 14.15 dB for any line with R ≤ 100 Ω,
     # |X| ≤ 1 kΩ: the closed form √(1 + Rc²/Xmax²) at Zline = ±j·Xmax, i.e. 10·log10(26).
     db, zl = worst_case_reduction(5000.0, 100.0, 1000.0, return_line=True)
     assert db == pytest.approx(14.15, abs=0.005)
@@ -27,7 +27,7 @@ def test_resistive_5k_choke_gives_14_15_db():
 
 
 def test_inductive_choke_on_capacitive_line_raises_the_current():
-    # DESIGN.md §4: a +j500 Ω choke on a 50 − j500 Ω line makes the current ten times worse.
+    # |Zl/(Zl + Zc)| (Kirchhoff): a +j500 Ω choke on a 50 − j500 Ω line makes the current ten times worse.
     assert 20 * math.log10(current_ratio(50 - 500j, 500j)) == pytest.approx(-20.0, abs=0.05)
     # So the worst case over R ≤ 100 Ω, |X| ≤ 1 kΩ is negative for a mostly inductive choke;
     # with a little loss it is bounded by |Rc|/|Xc| at Zline = −jXc (series resonance, Kirchhoff).
@@ -65,7 +65,7 @@ def test_worst_case_is_the_exact_minimum(zc, r_max, x_max):
 @settings(max_examples=60, deadline=None)
 def test_resistive_choke_closed_form(rc, r_max, x_max):
     # For Zc = Rc > 0 the ratio is smallest at a corner with |X| = Xmax: at R = 0,
-    # √(1 + Rc²/Xmax²) (DESIGN.md §4), or at R = Rmax, √(((Rc+Rmax)² + Xmax²)/(Rmax² + Xmax²))
+    # √(1 + Rc²/Xmax²), or at R = Rmax, √(((Rc+Rmax)² + Xmax²)/(Rmax² + Xmax²))
     # (elementary calculus on |Zl + Rc|²/|Zl|² along each side).
     a = 1 + rc**2 / x_max**2
     b = ((rc + r_max) ** 2 + x_max**2) / (r_max**2 + x_max**2)

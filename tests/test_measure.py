@@ -95,6 +95,8 @@ def test_reflection_round_trip(z, z0):
 def test_series_matches_curve_module_s21():
     # The curve module's series_s21 (same Pozar relation, written separately) and our inverse agree.
     z = _rlc(F, 30.0, 20e-6, 50e-12)
+    # Pozar Table 4.2, evaluated here: a round trip alone would pass two consistent mistakes.
+    assert np.allclose(series_s21(z, Z0), 2 * Z0 / (2 * Z0 + z), rtol=1e-12)
     assert np.allclose(series_through_z(series_s21(z, Z0), Z0), z, rtol=1e-12)
 
 

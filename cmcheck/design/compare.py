@@ -21,6 +21,7 @@ from ..errors import DesignError
 from ..units import Band
 from ..model.winding import Winding
 
+
 __all__ = [
     "DEFAULT_LINE_R_MAX",
     "DEFAULT_LINE_X_MAX",
@@ -268,13 +269,15 @@ class Comparison:
 
 def _log_mean(f, values, band: Band) -> float:
     """Mean of ``values`` over the band's segments, evenly weighted in log-frequency."""
+    from scipy.integrate import trapezoid as _trapezoid  # kept off the CLI start-up path
+
     lf = np.log(f)
     area = total = 0.0
     for lo, hi in band.segments:
         m = Band.single(lo, hi).contains(f)
         if m.sum() < 2:
             continue
-        area += np.trapezoid(values[m], lf[m])
+        area += _trapezoid(values[m], lf[m])
         total += lf[m][-1] - lf[m][0]
     return float(area / total) if total > 0 else float(np.mean(values[band.contains(f)]))
 
