@@ -1,5 +1,5 @@
 """``python -m cmcheck`` runs the command line."""
 
-from .cli.app import main
+from .cli.main import main
 
 main()

@@ -3,7 +3,7 @@
 Every error a user can cause carries a one-line message that names the file or parameter
 and the problem. An error about one parameter also carries its name in ``parameter``, so
 that the command line can say which option it was: it turns errors into ``error: …`` on
-stderr and exit status 2 in one place (:mod:`cmcheck.cli.app`), rewording parameters as
+stderr and exit status 2 in one place (:mod:`cmcheck.cli.main`), rewording parameters as
 options with one table (:mod:`cmcheck.cli.flags`). Library callers catch
 :class:`CmcheckError`.
 """
