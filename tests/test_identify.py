@@ -103,15 +103,20 @@ def test_naive_inversion_and_magnitude_peak_fail_where_identification_holds(synt
 
 def test_family_fit_and_nearest_material(synthetic):
     # Candidates: each family on the ISO 3 R10 grid (cmcheck.model.materials.family_grid).
-    mats = {m.name: m for k in ("nizn", "mnzn", "iron-powder") for m in family_grid(k, "R10")}
-    fams = [FamilyConstants.from_material(get_material(k)) for k in ("nizn-800", "mnzn-1500", "iron-powder-35")]
-    r = _identify(synthetic, families=fams, candidates=list(mats.values()))
+    # identify's defaults: the built-in families (µi free within each range), the nearest named
+    # on the family's ISO 3 R10 grid (cmcheck.model.materials.family_grid).
+    r = _identify(synthetic)
     # The synthetic material is the NiZn family member of µi = 1 + 560 + 210 = 771.
     assert r.model.form == "family:NiZn ferrite"
     assert r.model.parameters["mu_i"] == pytest.approx(771, rel=0.03)
     assert r.model.uncertainties["mu_i"] < 20
     assert r.nearest[0].name == "nizn-800" and "NiZn" in r.nearest_description()
     assert r.to_dict()["nearest_material"]["name"] == "nizn-800"
+    # ISO 3:1973 R10 neighbours of 771 are 630 and 1000.
+    assert r.family_label() == "NiZn ferrite, µi ≈ 630–1000"
+    # Against every grid member of every family (explicit candidates), nizn-800 is still nearest.
+    mats = [m for k in ("nizn", "mnzn", "iron-powder") for m in family_grid(k, "R10")]
+    assert _identify(synthetic, candidates=mats).nearest[0].name == "nizn-800"
     # The family member as an analytic material for the choke model: the same µ(f) as the fit,
     # and the synthetic material's within 3 % (µi 771 of the same family).
     f = r.frequency_hz
@@ -120,7 +125,7 @@ def test_family_fit_and_nearest_material(synthetic):
 
 
 def test_free_form_fit_with_uncertainties(synthetic):
-    r = _identify(synthetic, forms=("debye",))
+    r = _identify(synthetic, families=(), forms=("debye",))
     assert r.model.form == "debye"
     p, u = r.model.parameters, r.model.uncertainties
     # A single relaxation cannot follow a two-component material exactly; its µi still is the
