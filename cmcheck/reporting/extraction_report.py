@@ -97,9 +97,7 @@ def extraction_report(
             body.insert(len(body) - (good[0].summary.passed is not None), line)
     elif good:
         body = _batch(results, limits, models, more_option)
-        table = estimates_table(list(estimates), list(estimates.values()))
-        if table is not None:
-            body.append(table)
+        body += estimates_table(list(estimates), list(estimates.values()))
     else:
         body = []
     json = None

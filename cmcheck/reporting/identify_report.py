@@ -55,6 +55,7 @@ def identify_report(ident, *, core_text: str, method: str, rows: int = 12, circu
     m = ident.model
     body.append(Text(f"Model: {m.form}, rms error {100 * m.rms_relative_error:.2g} % over the "
                      f"{int(ident.valid.sum())} trusted points"))
+    body.append(Text("Fitted parameters:"))
     params = Table(
         (Column("parameter", "parameter"), Column("value", "value"), Column("uncertainty", "± (1σ)")),
         [(k, _value(v, _PARAMETER_UNITS.get(k, "")),
@@ -68,6 +69,7 @@ def identify_report(ident, *, core_text: str, method: str, rows: int = 12, circu
         body.append(Text(f"Nearest family: {ident.family_label()} ({mat.name}, rms distance {100 * dist:.2g} %)"))
     fitted = ident.model.permeability(f)
     idx = _rows(f, rows)
+    body.append(Text("Permeability (measured with Cp removed; model = the fitted form):"))
     mu_table = Table(
         (Column("frequency_hz", "frequency", "Hz", "hz", ".9g"),
          Column("mu_prime", "µ'", "", "num", ".6g"),

@@ -12,7 +12,7 @@ from ..errors import CmcheckError
 from ..units import format_quantity
 from .results import Column, Table, Text
 
-__all__ = ["estimate_dict", "estimate_text", "estimates_table", "winding_estimate"]
+__all__ = ["estimate_dict", "estimate_text", "estimates_table", "spice_writer", "winding_estimate"]
 
 
 def winding_estimate(extraction):
@@ -51,13 +51,28 @@ def estimate_text(est) -> Text | None:
                 f"Cp = 1/(ω0²L) = {format_quantity(est.cp_f, 'F', 3)}")
 
 
-def estimates_table(paths: Sequence[str], estimates: Sequence) -> Table | None:
-    """One row per file with an impedance (batch console report); None when there is none."""
+def estimates_table(paths: Sequence[str], estimates: Sequence) -> list:
+    """A heading and one row per file with an impedance (batch console report); [] when there is none."""
     rows = [(p, e.inductance_h, e.cp_f, e.r_low_ohm, e.self_resonance_hz)
             for p, e in zip(paths, estimates) if e is not None]
     if not rows:
-        return None
+        return []
     cols = (Column("file", "file"), Column("inductance_h", "L", "H", "henry", ".6g"),
             Column("cp_f", "Cp", "F", "farad", ".6g"), Column("r_low_ohm", "R low [Ω]", "Ω", "num", ".6g"),
             Column("self_resonance_hz", "self-resonance", "Hz", "hz", ".6g"))
-    return Table(cols, rows, title="Winding estimates (closed form)", fold_first=True)
+    return [Text("Winding estimates (closed form: L from the inductive slope, Cp = 1/(ω0²L)):"),
+            Table(cols, rows, title="Winding estimates (closed form)", fold_first=True)]
+
+
+def spice_writer(path, extraction):
+    """A writer of the fitted equivalent circuit of ``extraction``'s impedance as a SPICE
+    subcircuit (fitted now, written when called; for staged writing with a report's files)."""
+    from ..errors import MeasurementError
+    from ..identify.circuit import fit_circuit, write_spice
+
+    curve = getattr(extraction, "curve", None)
+    if curve is None:
+        raise MeasurementError(f"{extraction.source}: an equivalent circuit needs an impedance (series, shunt or reflect)")
+    circuit = fit_circuit(curve.frequency_hz, curve.z, curve.valid)
+    comments = [f"fitted to {extraction.source} ({extraction.method}), valid points only"]
+    return lambda: write_spice(path, circuit, "winding", comments)
