@@ -270,3 +270,20 @@ def test_cp_from_resonance_is_thomson_for_a_lossless_winding():
     w0 = 2 * np.pi * f0
     assert cp_from_resonance(f0, 1j * w0 * ind) == pytest.approx(1 / (w0**2 * ind), rel=1e-12)
     assert cp_from_resonance(f0, r + 1j * w0 * ind) == pytest.approx(ind / (r**2 + (w0 * ind) ** 2), rel=1e-12)
+
+
+def test_family_fit_holds_mu_i_within_the_family_range():
+    # A relaxation (Debye, µi = 300, fr = S/(µi − 1) with the iron-powder family's Snoek product,
+    # written out here) is the iron-powder shape beyond its µi range (4–100): the family fit stops
+    # at 100 and a free form, which follows it, is kept instead.
+    from cmcheck.identify import fit_dispersion
+    from cmcheck.model.families import builtin_families
+
+    fam = builtin_families()["iron-powder"]
+    f = np.geomspace(1e5, 1e8, 60)
+    mu = 1 + 299 / (1 + 1j * f / (fam.snoek_spin_hz / 299))
+    fit = fit_dispersion(f, mu, families=[fam])
+    assert fit.alternatives["family:iron powder"] > 0.3
+    assert fit.form == "debye" and fit.parameters["mu_i"] == pytest.approx(300, rel=1e-3)
+    held = [o for o in fit.others if o.form == "family:iron powder"][0]
+    assert held.parameters["mu_i"] == pytest.approx(100)
