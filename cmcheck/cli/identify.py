@@ -18,8 +18,6 @@ from .app import app
 from .extract import MEASURE_PANEL, _parse_percent
 from .render import show
 
-CORE_PANEL = "Core and winding (the material is what is identified)"
-
 EPILOG = """\b
 Wind a few turns on the unknown core, sweep it (reflection across port 1 suits a few
 turns; series-through a winding of kilohms), and give the core's size and the turns.
@@ -37,6 +35,7 @@ def identify(
     height: o.Height = None,
     cores: o.Cores = 1,
     core_factor: o.CoreFactor = None,
+    window: o.Window = None,
     width: o.Width = None,
     thickness: o.Thickness = None,
     length: o.Length = None,
@@ -72,7 +71,7 @@ def identify(
     if (open_file is None) != (short_file is None):
         raise CmcheckError("--open and --short go together: compensation needs both fixture sweeps")
     core = o.core_from_options(od=od, id=id, height=height, cores=cores, core_factor=core_factor,
-                               width=width, thickness=thickness, length=length, hole=hole, hole_spacing=hole_spacing)
+                               window=window, width=width, thickness=thickness, length=length, hole=hole, hole_spacing=hole_spacing)
     z0_value = o.parse_option("--z0", parse_resistance, z0)
     accuracy = Accuracy(floor_db=floor_db, max_error=_parse_percent(max_error, "--max-error"),
                         cal_error=_parse_percent(cal_error, "--cal-error", allow_zero=True))
