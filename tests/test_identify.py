@@ -103,15 +103,20 @@ def test_naive_inversion_and_magnitude_peak_fail_where_identification_holds(synt
 
 def test_family_fit_and_nearest_material(synthetic):
     # Candidates: each family on the ISO 3 R10 grid (cmcheck.model.materials.family_grid).
-    mats = {m.name: m for k in ("nizn", "mnzn", "iron-powder") for m in family_grid(k, "R10")}
-    fams = [FamilyConstants.from_material(get_material(k)) for k in ("nizn-800", "mnzn-1500", "iron-powder-35")]
-    r = _identify(synthetic, families=fams, candidates=list(mats.values()))
+    # identify's defaults: the built-in families (µi free within each range), the nearest named
+    # on the family's ISO 3 R10 grid (cmcheck.model.materials.family_grid).
+    r = _identify(synthetic)
     # The synthetic material is the NiZn family member of µi = 1 + 560 + 210 = 771.
     assert r.model.form == "family:NiZn ferrite"
     assert r.model.parameters["mu_i"] == pytest.approx(771, rel=0.03)
     assert r.model.uncertainties["mu_i"] < 20
     assert r.nearest[0].name == "nizn-800" and "NiZn" in r.nearest_description()
     assert r.to_dict()["nearest_material"]["name"] == "nizn-800"
+    # ISO 3:1973 R10 neighbours of 771 are 630 and 1000.
+    assert r.family_label() == "NiZn ferrite, µi ≈ 630–1000"
+    # Against every grid member of every family (explicit candidates), nizn-800 is still nearest.
+    mats = [m for k in ("nizn", "mnzn", "iron-powder") for m in family_grid(k, "R10")]
+    assert _identify(synthetic, candidates=mats).nearest[0].name == "nizn-800"
     # The family member as an analytic material for the choke model: the same µ(f) as the fit,
     # and the synthetic material's within 3 % (µi 771 of the same family).
     f = r.frequency_hz
@@ -120,7 +125,7 @@ def test_family_fit_and_nearest_material(synthetic):
 
 
 def test_free_form_fit_with_uncertainties(synthetic):
-    r = _identify(synthetic, forms=("debye",))
+    r = _identify(synthetic, families=(), forms=("debye",))
     assert r.model.form == "debye"
     p, u = r.model.parameters, r.model.uncertainties
     # A single relaxation cannot follow a two-component material exactly; its µi still is the
@@ -265,3 +270,20 @@ def test_cp_from_resonance_is_thomson_for_a_lossless_winding():
     w0 = 2 * np.pi * f0
     assert cp_from_resonance(f0, 1j * w0 * ind) == pytest.approx(1 / (w0**2 * ind), rel=1e-12)
     assert cp_from_resonance(f0, r + 1j * w0 * ind) == pytest.approx(ind / (r**2 + (w0 * ind) ** 2), rel=1e-12)
+
+
+def test_family_fit_holds_mu_i_within_the_family_range():
+    # A relaxation (Debye, µi = 300, fr = S/(µi − 1) with the iron-powder family's Snoek product,
+    # written out here) is the iron-powder shape beyond its µi range (4–100): the family fit stops
+    # at 100 and a free form, which follows it, is kept instead.
+    from cmcheck.identify import fit_dispersion
+    from cmcheck.model.families import builtin_families
+
+    fam = builtin_families()["iron-powder"]
+    f = np.geomspace(1e5, 1e8, 60)
+    mu = 1 + 299 / (1 + 1j * f / (fam.snoek_spin_hz / 299))
+    fit = fit_dispersion(f, mu, families=[fam])
+    assert fit.alternatives["family:iron powder"] > 0.3
+    assert fit.form == "debye" and fit.parameters["mu_i"] == pytest.approx(300, rel=1e-3)
+    held = [o for o in fit.others if o.form == "family:iron powder"][0]
+    assert held.parameters["mu_i"] == pytest.approx(100)

@@ -11,11 +11,11 @@ import numpy as np
 import pytest
 
 from cmcheck.errors import CmcheckWarning
-from cmcheck.identify import FamilyConstants, identify
+from cmcheck.identify import identify
 from cmcheck.identify.circuit import fit_circuit
 from cmcheck.measurement.methods import extract
 from cmcheck.measurement.touchstone import read_touchstone
-from cmcheck.model.materials import builtin_materials, family_grid, get_material
+from cmcheck.model.materials import family_grid
 
 
 def c1_ring(od, id_, h):
@@ -73,15 +73,19 @@ def test_two_fixtures_give_the_same_mu(real_dir):
 
 def test_small_nizn_ring_is_named_nizn_800(real_dir):
     # Candidates: each family on the ISO 3 R10 grid (cmcheck.model.materials.family_grid).
-    mats = {m.name: m for k in ("nizn", "mnzn", "iron-powder") for m in family_grid(k, "R10")}
-    fams = [FamilyConstants.from_material(get_material(k)) for k in ("nizn-800", "mnzn-1500", "iron-powder-35")]
-    _, r = _run(real_dir, "ring-9.55x4.75x3.2mm-2turns.s1p", (9.55e-3, 4.75e-3, 3.2e-3), 2,
-                families=fams, candidates=list(mats.values()))
+    # identify's defaults: every built-in family fitted with µi free within its range, the
+    # nearest named on the kept family's ISO 3 R10 grid.
+    _, r = _run(real_dir, "ring-9.55x4.75x3.2mm-2turns.s1p", (9.55e-3, 4.75e-3, 3.2e-3), 2)
     i = int(np.argmin(np.abs(r.frequency_hz - 1e6)))
     # from memory: typical of the NiZn µi ≈ 800 class (SOURCES.md: bought as such).
     assert 600 < r.data.mu_prime[i] < 950 and r.valid[i]
     assert r.nearest[0].name == "nizn-800" and "NiZn" in r.nearest_description()
     assert r.model.form == "family:NiZn ferrite" and 600 < r.model.parameters["mu_i"] < 950
+    assert r.family_label().startswith("NiZn ferrite, µi ≈ ")
+    # Against every family's R10 grid (explicit candidates) the NiZn member of µi 800 stays nearest.
+    mats = [m for k in ("nizn", "mnzn", "iron-powder") for m in family_grid(k, "R10")]
+    _, r2 = _run(real_dir, "ring-9.55x4.75x3.2mm-2turns.s1p", (9.55e-3, 4.75e-3, 3.2e-3), 2, candidates=mats)
+    assert r2.nearest[0].name == "nizn-800"
     # SOURCES.md: the measurer's LCR reading 1.31 µH at 10 kHz; L0·µi from the fit.
     l0 = 4e-7 * math.pi * 4 / c1_ring(9.55e-3, 4.75e-3, 3.2e-3)
     assert l0 * r.model.parameters["mu_i"] == pytest.approx(1.31e-6, rel=0.10)

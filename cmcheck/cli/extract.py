@@ -95,6 +95,7 @@ def extract(
     json_out: o.JsonOut = None,
     csv_out: o.CsvOut = None,
     plot_out: o.PlotOut = None,
+    spice_out: Annotated[Optional[Path], typer.Option("--spice", help="Single file: write the winding's fitted equivalent circuit as a SPICE subcircuit.", rich_help_panel=o.OUTPUT_PANEL)] = None,
     vs_model: Annotated[bool, typer.Option("--vs-model", help="Compare with the model of the design given by the design options.", rich_help_panel=o.DESIGN_PANEL)] = False,
     design_options: dict = None,
 ) -> None:
@@ -133,7 +134,9 @@ def extract(
     material = design_options["material"]
     if material and Path(material).is_file():
         inputs.append(material)
-    check_outputs([json_out, csv_out, plot_out, summary_out], inputs)
+    check_outputs([json_out, csv_out, plot_out, summary_out, spice_out], inputs)
+    if spice_out is not None and (len(paths) != 1 or legs is not None):
+        raise CmcheckError("--spice fits one winding: give a single Touchstone file")
 
     fixture = None
     if open_file is not None:
@@ -151,8 +154,13 @@ def extract(
 
     report = extraction_report(results, limits, accuracy, rows=rows, models=models, design=design,
                                more_option="--summary")
+    extra = ()
+    if spice_out is not None and good:
+        from ..reporting.winding_report import spice_writer
+
+        extra = (spice_writer(spice_out, good[0].extraction),)
     # Files first, all or none: a closed pipe (| head) must not cost the user the results.
-    write_report(report, json=json_out, csv={"long": csv_out, "summary": summary_out}, plot=plot_out)
+    write_report(report, json=json_out, csv={"long": csv_out, "summary": summary_out}, plot=plot_out, extra=extra)
     show(report)
     raise typer.Exit(exit_status(results))
 

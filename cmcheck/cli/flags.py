@@ -73,6 +73,10 @@ _TABLE = (
     Flag("target_r", "--target-r", "results[].summary", "Ω"),
     Flag("target_z", "--target-z", "results[].summary", "Ω"),
     Flag("target_cmrr_db", "--target-cmrr", "results[].summary", "dB"),
+    # Identification (identify, extract --spice)
+    Flag("c1", "--od/--id/--height or --core-factor", "c1_per_m", "1/m"),
+    Flag("save_material", "--save-material", "", ""),
+    Flag("spice", "--spice", "equivalent_circuit", ""),
 )
 
 #: Library parameter name → its row.

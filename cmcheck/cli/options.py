@@ -189,6 +189,27 @@ def design_from_options(
         raise CmcheckError("--material is required (a built-in name or a CSV file)")
     if turns is None:
         raise CmcheckError("--turns is required")
+    core = core_from_options(od=od, id=id, height=height, cores=cores, core_factor=core_factor, window=window,
+                             width=width, thickness=thickness, length=length, hole=hole, hole_spacing=hole_spacing)
+    if wire is not None and cable_od is not None:
+        raise CmcheckError("give either --wire or --cable-od, not both")
+    if cable_od is not None:
+        conductor = Cable(_length("--cable-od", cable_od))
+    else:
+        conductor = Wire(_length("--wire", wire or "1mm", awg=True), _length("--insulation", insulation))
+    cap = None
+    if cp is not None:
+        try:
+            cap = parse_capacitance(cp)
+        except UnitError as exc:
+            raise UnitError(f"--cp: {exc}") from None
+    winding = Winding(turns, conductor, cap)
+    return ChokeDesign(core, get_material(material), winding)
+
+
+def core_from_options(*, od=None, id=None, height=None, cores: int = 1, core_factor=None, window=None,
+                      width=None, thickness=None, length=None, hole=None, hole_spacing=None) -> Core:
+    """The core from option text (ring, two-hole or core factor); errors name the option."""
     two_hole = (("--width", width), ("--thickness", thickness), ("--length", length), ("--hole", hole),
                 ("--hole-spacing", hole_spacing))
     if any(v is not None for _, v in two_hole):
@@ -214,20 +235,7 @@ def design_from_options(
         if missing:
             raise CmcheckError(f"the core needs {', '.join(missing)} (or --core-factor)")
         core = RingCore(_length("--od", od), _length("--id", id), _length("--height", height), cores)
-    if wire is not None and cable_od is not None:
-        raise CmcheckError("give either --wire or --cable-od, not both")
-    if cable_od is not None:
-        conductor = Cable(_length("--cable-od", cable_od))
-    else:
-        conductor = Wire(_length("--wire", wire or "1mm", awg=True), _length("--insulation", insulation))
-    cap = None
-    if cp is not None:
-        try:
-            cap = parse_capacitance(cp)
-        except UnitError as exc:
-            raise UnitError(f"--cp: {exc}") from None
-    winding = Winding(turns, conductor, cap)
-    return ChokeDesign(core, get_material(material), winding)
+    return core
 
 
 #: The option that sets each defining dimension of a core (:meth:`~cmcheck.model.cores.Core.dimensions`).

@@ -24,6 +24,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import IdentificationError
+from ..model.families import Family
 from ..model.materials import Debye, Material, Tabulated, TwoComponent, debye_permeability, two_component_permeability
 
 __all__ = [
@@ -95,6 +96,8 @@ class FamilyConstants:
     spin_fraction: float = 1.0
     dw_to_spin: float = 1.0
     damping_to_dw: float = 1.0
+    #: The built-in family these constants come from (None for constants given by hand).
+    source: Family | None = None
 
     def __post_init__(self) -> None:
         if not (np.isfinite(self.snoek_hz) and self.snoek_hz > 0):
@@ -109,6 +112,24 @@ class FamilyConstants:
         ``frequency_hz`` [Hz]; see :func:`family_permeability` (Snoek 1948, Tsutaoka 2003)."""
         return family_permeability(frequency_hz, mu_i, self.snoek_hz, self.spin_fraction, self.dw_to_spin,
                                    self.damping_to_dw)
+
+    def bounded(self, mu_i):
+        """``mu_i`` held within the source family's µi range (unchanged without a source family)."""
+        if self.source is None:
+            return mu_i
+        return np.clip(mu_i, *self.source.mu_range)
+
+    @classmethod
+    def from_family(cls, family: Family) -> "FamilyConstants":
+        """The constants of a built-in :class:`~cmcheck.model.families.Family` (same µ(f; µi)).
+
+        A family's domain-wall share a is the complement of the spin fraction; a Debye family
+        is a spin-only member (its relaxation frequency is the Snoek product over µi − 1).
+        """
+        if family.form == "debye" or family.domain_wall_fraction == 0.0:
+            return cls(family.name, family.snoek_spin_hz, source=family)
+        return cls(family.name, family.snoek_spin_hz, 1.0 - family.domain_wall_fraction,
+                   family.snoek_domain_wall_hz / family.snoek_spin_hz, family.damping_ratio, source=family)
 
     @classmethod
     def from_material(cls, material: Material, name: str | None = None) -> "FamilyConstants":
@@ -266,8 +287,9 @@ def fit_dispersion(frequency_hz, mu, *, families=(), accept=0.10, forms=("debye"
         Frequencies of trusted points [Hz] (at least 6).
     mu : array_like of complex
         µ' − jµ'' there [dimensionless].
-    families : sequence of FamilyConstants
-        Candidate families.
+    families : sequence of Family or FamilyConstants
+        Candidate families (a built-in :class:`~cmcheck.model.families.Family` is fitted with µi
+        held within its range).
     accept : float
         Largest rms relative error for a family to be kept [dimensionless].
     forms : sequence of str
@@ -300,11 +322,16 @@ def fit_dispersion(frequency_hz, mu, *, families=(), accept=0.10, forms=("debye"
     start = _debye_start(f, mu)
     best_family = None
     for fam in families:
-        p, sd, rms, _ = fit_form(f, mu, lambda ff, q, fam=fam: fam.permeability(ff, 1.0 + q[0]),
-                                 [max(start[0] - 1.0, 1e-3)], ["mu_i"])
+        fam = fam if isinstance(fam, FamilyConstants) else FamilyConstants.from_family(fam)
+        x0 = float(fam.bounded(max(start[0], 1.0 + 1e-3))) - 1.0
+        # µi free within the family's range: outside it the family model is not claimed to hold.
+        p, sd, rms, _ = fit_form(f, mu, lambda ff, q, fam=fam: fam.permeability(ff, fam.bounded(1.0 + q[0])),
+                                 [max(x0, 1e-3)], ["mu_i"])
+        mu_fit = float(fam.bounded(1.0 + p[0]))
+        sd_mu = float(sd[0]) if mu_fit == 1.0 + p[0] else float("inf")
         key = f"family:{fam.name}"
         tried[key] = rms
-        fit = DispersionFit(key, {"mu_i": float(1.0 + p[0])}, {"mu_i": float(sd[0])}, rms, fam)
+        fit = DispersionFit(key, {"mu_i": mu_fit}, {"mu_i": sd_mu}, rms, fam)
         if best_family is None or rms < best_family.rms_relative_error:
             best_family = fit
     free: dict[str, DispersionFit] = {}

@@ -84,6 +84,14 @@ class Identification:
         fam = mat.family or "material"
         return f"{mat.name} ({fam}, µi ≈ {mat.initial_permeability:.3g})"
 
+    def family_label(self) -> str | None:
+        """The nearest family and µi in words, e.g. ``"NiZn ferrite, µi ≈ 630–1000"``: the purchase
+        label of the nearest family member (the span of its ISO 3 R10 grid neighbours,
+        :func:`~cmcheck.model.materials.purchase_label`); None without a nearest material."""
+        from ..model.materials import purchase_label
+
+        return None if self.nearest is None else purchase_label(self.nearest[0])
+
     def material_permeability(self) -> np.ndarray:
         """µ over the whole measured band: measured where trusted, the fitted model elsewhere.
 
@@ -103,6 +111,13 @@ class Identification:
     def fitted_material(self, name: str = "identified-model") -> Material:
         """The fitted dispersion model as an analytic :class:`Material` (usable beyond the band)."""
         p = self.model.parameters
+        if getattr(self.model.family, "source", None) is not None:
+            from ..model.materials import family_material
+
+            member = family_material(self.model.family.source, p["mu_i"])
+            return Material(name, member.model, family=member.family, description=self.summary(),
+                            provenance=f"{member.name} fitted to {self.source or 'a measured sweep'}",
+                            extra=dict(member.extra), electrical_class=member.electrical_class)
         if self.model.family is not None:
             fam = self.model.family
             chi = p["mu_i"] - 1.0
@@ -150,6 +165,7 @@ class Identification:
         near = None
         if self.nearest is not None:
             near = {"name": self.nearest[0].name, "distance": self.nearest[1], "description": self.nearest_description(),
+                    "family_label": self.family_label(),
                     "distance_measure": "rms over trusted points, equal weight per decade, of |µ_candidate − µ_measured|/|µ_measured|"}
         return {
             "schema_version": SCHEMA_VERSION,
@@ -171,6 +187,21 @@ class Identification:
             "nearest_material": near,
             "notes": list(self.notes),
         }
+
+
+def _nearest(fit: DispersionFit, f, mu, candidates):
+    """(Material, distance) of the nearest candidate; see :func:`identify`'s ``candidates``."""
+    from ..model.families import builtin_families
+    from ..model.materials import family_grid, family_material
+
+    fam = getattr(fit.family, "source", None)
+    if candidates is None and fam is not None:
+        grid = fam.grid("R10")
+        mu_i = grid[int(np.argmin(np.abs(np.log(grid / fit.parameters["mu_i"]))))]
+        candidates = [family_material(fam, mu_i)]
+    elif candidates is None:
+        candidates = [m for fam in builtin_families().values() for m in family_grid(fam, "R10")]
+    return nearest_material(f, mu, candidates) if len(candidates) else None
 
 
 def _joint_cp(f, z, error, f0, l0, r_conductor, fit: DispersionFit, cp0):
@@ -238,7 +269,7 @@ def _joint_cp_one(f, z, error, f0, l0, r_conductor, fit: DispersionFit, cp0):
 
 
 def identify(measured, *, c1: float, turns: float, cp_f: float | None = None, cp_uncertainty_f: float = 0.0,
-             r_conductor: float = 0.0, families=(), candidates=(), forms=("debye", "two_component"),
+             r_conductor: float = 0.0, families=None, candidates=None, forms=("debye", "two_component"),
              accept: float = 0.10, resonance_fraction: float = 0.7, tolerance: float = 0.10) -> Identification:
     """Identify the core material µ(f) and the winding's Cp from one measured sweep.
 
@@ -257,10 +288,13 @@ def identify(measured, *, c1: float, turns: float, cp_f: float | None = None, cp
         Its standard uncertainty [F] when given.
     r_conductor : float
         Conductor resistance [Ω] to remove (default 0: included in µ'').
-    families : sequence of FamilyConstants
-        Family models to try first.
-    candidates : sequence of Material
-        Materials to name the nearest of.
+    families : sequence of Family or FamilyConstants, optional
+        Family models to try first (µi free within each family's range); the built-in families
+        (:func:`~cmcheck.model.families.builtin_families`) by default, ``()`` for none.
+    candidates : sequence of Material, optional
+        Materials to name the nearest of. By default the members of the built-in families on
+        the ISO 3 R10 grid; when a built-in family's fit is kept, the nearest is its member at
+        the grid value nearest the fitted µi (in ratio).
     forms : sequence of str
         Free dispersion forms.
     accept : float
@@ -292,6 +326,10 @@ def identify(measured, *, c1: float, turns: float, cp_f: float | None = None, cp
     source = getattr(measured, "source", "") or curve.label
     f, z, valid = curve.frequency_hz, curve.z, curve.valid
     notes: list[str] = []
+    if families is None:
+        from ..model.families import builtin_families
+
+        families = tuple(builtin_families().values())
     res = find_self_resonance(f, z)
     if cp_f is not None:
         if not (isinstance(cp_f, (int, float, np.floating)) and np.isfinite(cp_f) and cp_f >= 0):
@@ -335,5 +373,5 @@ def identify(measured, *, c1: float, turns: float, cp_f: float | None = None, cp
         warnings.warn(f"{source or 'measured'}: {n_model} of {f.size} points are not trusted for µ "
                       f"({', '.join(f'{k}: {v}' for k, v in data.excluded().items())}); the saved material uses the "
                       "fitted model there", CmcheckWarning, stacklevel=2)
-    near = nearest_material(f[data.trusted], data.mu[data.trusted], candidates) if candidates else None
+    near = _nearest(fit, f[data.trusted], data.mu[data.trusted], candidates)
     return Identification(data, cp, u_cp, method, res, fit, near, float(c1), float(turns), source, tuple(notes))

@@ -14,6 +14,7 @@ from ..units import format_quantity
 from .choke_report import table_indices
 from .files import SAFETY_NOTES
 from .results import Column, Figure, Report, Series, Table, Text
+from .winding_report import estimate_dict, estimate_text, estimates_table, winding_estimate
 
 __all__ = ["extraction_report", "MAX_REASONS", "MAX_PLOTTED"]
 
@@ -88,15 +89,23 @@ def extraction_report(
     """
     models = dict(models or {})
     good = [r for r in results if r.error is None]
+    estimates = {r.path: winding_estimate(r.extraction) for r in good}
     if len(results) == 1 and good:
         body = _one(good[0], accuracy, rows, models.get(good[0].path))
+        line = estimate_text(estimates[good[0].path])
+        if line is not None:
+            body.insert(len(body) - (good[0].summary.passed is not None), line)
     elif good:
         body = _batch(results, limits, models, more_option)
+        body += estimates_table(list(estimates), list(estimates.values()))
     else:
         body = []
     json = None
     if good:
         json = {"results": [_with_model(result_to_dict(r), models.get(r.path)) for r in results]}
+        for d in json["results"]:
+            if "error" not in d:
+                d["winding_estimate"] = estimate_dict(estimates.get(d["file"]))
         if design is not None:
             json["model"] = {"description": design.describe(), **design.to_dict()}
     data = {"summary": _summary_table(results)}

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import os
-from typing import Mapping
+from typing import Callable, Mapping, Sequence
 
 from .files import staged_outputs, write_json, write_table_csv, write_touchstone
 from .plots import plot_figure
@@ -21,6 +21,7 @@ def write_report(
     csv: Mapping[str, PathLike | None] | None = None,
     plot: PathLike | None = None,
     touchstone: PathLike | None = None,
+    extra: Sequence[Callable[[], None]] = (),
 ) -> None:
     """Write the asked outputs of ``report`` all together or none (see :func:`staged_outputs`).
 
@@ -34,6 +35,9 @@ def write_report(
         The report's first figure as PNG (skipped when it has none).
     touchstone : path, optional
         The first figure's first impedance curve as a series two-port ``.s2p`` file.
+    extra : sequence of callables
+        Further writers (each writes one file through :func:`~cmcheck.reporting.files.atomic_write`),
+        staged with the rest.
     """
     with staged_outputs():
         if json and report.json is not None:
@@ -46,3 +50,5 @@ def write_report(
         if touchstone:
             fig = report.figures[0]
             write_touchstone(touchstone, fig.curves[0], comments=report.data["curve"].comments)
+        for write in extra:
+            write()
