@@ -202,3 +202,39 @@ def transformer(
     network = design_network(topo, f, spec, zs) if touchstone_out else None
     write_transformer_outputs(report, network, json=json_out, csv=csv_out, plot=plot_out, touchstone=touchstone_out)
     show(report)
+
+
+def run_transformer_check(paths, topology: str, max_swr: float | None, band: str | None, z0: str | None,
+                          vs_model: bool, design_options: dict, rows: int, json_out, csv_out, plot_out) -> int:
+    """``extract FILE --transformer TOPOLOGY``: SWR of built units against ``max_swr``; exit 1 on a failure."""
+    from ..measurement.touchstone import read_touchstone
+    from ..measurement.transformer_check import check_transformer
+    from ..reporting.outputs import write_report
+    from ..reporting.transformer_check_report import transformer_check_report
+
+    if not paths:
+        raise CmcheckError("--transformer checks one or more Touchstone files")
+    topo = topology_from_option(topology)
+    limit = DEFAULT_MAX_SWR if max_swr is None else max_swr
+    if not (math.isfinite(limit) and limit > 1):
+        raise UnitError(f"--max-swr {limit:g}: must be above 1")
+    b = o.band_from_option(band) if band else None
+    z0_value = o.parse_option("--z0", parse_resistance, z0)
+    design = o.design_from_options(**design_options) if vs_model else None
+    inputs = list(paths) + [m for m in [design_options.get("material")] if m and Path(m).is_file()]
+    check_outputs([json_out, csv_out, plot_out], inputs)
+    checks = [check_transformer(read_touchstone(p, z0=z0_value), p, limit, b) for p in paths]
+    model, label = {}, ""
+    if design is not None:
+        spec, _ = build_transformer(topo, design)
+        for c in checks:
+            if c.kind != "loaded":
+                raise CmcheckError(f"{c.path}: --vs-model compares a one-port into the load resistor")
+            ld = Load.resistor(c.z0 * topo.ratio)
+            r = analyse(topo, c.frequency_hz, spec, ld, source_impedance=c.z0)
+            model[c.path] = (r.zin, r.swr)
+            label = f"{topo.name}, {design.describe()}, load {ld.label}"
+    report = transformer_check_report(checks, b, rows, model, label)
+    write_report(report, json=json_out, csv={"long": csv_out}, plot=plot_out)
+    show(report)
+    return 0 if all(c.passed for c in checks) else 1
