@@ -73,6 +73,21 @@ _TABLE = (
     Flag("target_r", "--target-r", "results[].summary", "Ω"),
     Flag("target_z", "--target-z", "results[].summary", "Ω"),
     Flag("target_cmrr_db", "--target-cmrr", "results[].summary", "dB"),
+    # Transformers (transformer, extract --transformer)
+    Flag("topology", "--topology", "topology", ""),
+    Flag("primary_turns", "--turns", "", ""),
+    Flag("impedance_ratio", "--topology", "", ""),
+    Flag("source_impedance", "--z0", "z0_ohm", "Ω"),
+    Flag("load", "--load", "load", "Ω"),
+    Flag("resistance", "--load", "load", "Ω"),
+    Flag("lead_inductance", "--load-l", "", "H"),
+    Flag("shunt_capacitance", "--load-c", "", "F"),
+    Flag("leg_p", "--leg-to-ground", "", "Ω"),
+    Flag("leg_n", "--leg-to-ground", "", "Ω"),
+    Flag("line_z0", "--line-z0", "", "Ω"),
+    Flag("line_length", "--line-length", "", "m"),
+    Flag("velocity_factor", "--velocity-factor", "", ""),
+    Flag("max_swr", "--max-swr", "summary.max_swr", ""),
 )
 
 #: Library parameter name → its row.
