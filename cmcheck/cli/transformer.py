@@ -89,10 +89,19 @@ def _load(text: str | None, default: float, load_l, load_c, legs) -> Load:
     return Load.complex(z, leg_p, leg_n)
 
 
-def parse_quantity_h(text: str) -> float:
-    from ..units import parse_quantity
+_PREFIX = {"p": 1e-12, "n": 1e-9, "u": 1e-6, "µ": 1e-6, "m": 1e-3, "": 1.0}
 
-    return parse_quantity(text, "H")
+
+def parse_quantity_h(text: str) -> float:
+    """Inductance text (``10nH``, ``0.1uH``, ``1e-8``) → H."""
+    m = re.fullmatch(r"\s*([0-9.eE+-]+)\s*([pnuµm]?)H?\s*", text)
+    try:
+        v = float(m.group(1)) * _PREFIX[m.group(2)]
+    except (AttributeError, ValueError):
+        raise UnitError(f"{text!r} is not an inductance such as 10nH") from None
+    if not (math.isfinite(v) and v >= 0):
+        raise UnitError(f"{text!r}: the inductance must be ≥ 0")
+    return v
 
 
 def _positive(option: str, text: str | None, parser):
