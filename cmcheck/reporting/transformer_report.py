@@ -195,8 +195,12 @@ def transformer_report(result, *, topology, transformer, load, band, z0: float, 
         js["winding_voltage_v"] = r.winding_voltage
     if characterisation is not None:
         js["characterisation"] = characterisation
-        body.insert(3, Text("  characterised from open/short tests: " + ", ".join(
-            f"{k} = {v:.4g}" for k, v in characterisation.items() if isinstance(v, float))))
+        c = characterisation
+        body.insert(3, Text(
+            f"  characterised from open/short tests: leakage {format_quantity(c['leakage_h'], 'H')} "
+            f"({100 * c['primary_leakage_share']:.0f} % at the primary), Cs {format_quantity(c['secondary_capacitance_f'], 'F')}, "
+            f"µi {c['initial_permeability']:.0f} relaxing at {format_quantity(c['relaxation_frequency_hz'], 'Hz')}, "
+            f"copper {c['r_primary_1mhz_ohm']:.3g} Ω at 1 MHz; fit RMS {100 * c['rms_log_error']:.1f} % in ln Z"))
     fig = Figure("series", title=description, series=(Series("SWR", f, r.swr),), y_label="SWR", band=band,
                  target=max_swr, target_label=f"SWR {max_swr:g}")
     return Report(title=description, inputs={"design": description, "topology": topology.name, "band": str(band)},
