@@ -248,3 +248,28 @@ def test_predict_drive_options_need_power(run_cli):
     code, _, err = run_cli("predict", "--material", "nizn-800", "--od", "61mm", "--id", "35.6mm", "--height", "12.7mm",
                            "--turns", "8", "--cm-voltage", "150V")
     assert code == 2 and "--power" in err
+
+
+def test_toml_topology_file_equals_the_built_in(run_cli, tmp_path):
+    # The same connections given as a TOML file (schema in DEVELOPERS.md) give the same input.
+    toml = tmp_path / "r4.toml"
+    toml.write_text('name = "my-4:1"\nratio = 4\n[[line]]\nend1 = ["in", "gnd"]\nend2 = ["out", "in"]\n')
+    a, _ = _run_json(run_cli, tmp_path, "--topology", "ruthroff-4:1-unun", *RING, "--points", "11")
+    b, _ = _run_json(run_cli, tmp_path, "--topology", toml, *RING, "--points", "11")
+    assert np.allclose(a["input_resistance_ohm"], b["input_resistance_ohm"], rtol=1e-12)
+    assert np.allclose(a["input_reactance_ohm"], b["input_reactance_ohm"], rtol=1e-12, atol=1e-12)
+
+
+def test_velocity_factor_sets_the_line_delay(run_cli, tmp_path):
+    # A 1:1 Guanella balun into a load ≠ Z0 of its line: the input transforms as a line section,
+    # Zin = Z0·(ZL + jZ0·tanβl)/(Z0 + jZL·tanβl) (Pozar eq. 2.44), with βl = 2πf·l/(vf·c); checked
+    # where the winding's choking impedance is high, on R and X separately.
+    ring = ["--material", "nizn-800", "--od", "36mm", "--id", "23mm", "--height", "15mm", "--turns", "14",
+            "--wire", "1mm", "--insulation", "0.03mm"]
+    d, _ = _run_json(run_cli, tmp_path, "--topology", "guanella-1:1", *ring, "--load", "100", "--line-z0", "50",
+                     "--line-length", "2m", "--velocity-factor", "0.7", "--band", "5-5.1MHz", "--points", "2")
+    f = np.array(d["frequency_hz"])
+    t = np.tan(2 * np.pi * f * 2.0 / (0.7 * 299_792_458.0))
+    zin = 50 * (100 + 1j * 50 * t) / (50 + 1j * 100 * t)
+    assert np.allclose(d["input_resistance_ohm"], zin.real, rtol=0.03)
+    assert np.allclose(d["input_reactance_ohm"], zin.imag, rtol=0.05)
