@@ -138,6 +138,9 @@ def transformer_report(result, *, topology, transformer, load, band, z0: float, 
         body.append(Text("CMRR model: 20·log10|Ip − In|/|Ip + In| of the output currents into this load and its "
                          "legs to ground; CMRR 3-port: |Sds21/Scs21| of the transformer alone with 50 Ω legs, "
                          "the figure a VNA measurement gives"))
+        if load.leg_p is None and load.leg_n is None:
+            body.append(Text("  no leg-to-ground impedances given: the load floats, so the model CMRR is limited only by the "
+                             "circuit's reference leak (shown as – when unbounded)"))
     notes = list(SAFETY_NOTES[:1])
     summary = {"max_swr": max_swr, "worst_swr": float(swr_b[i_worst]), "worst_swr_hz": float(fb[i_worst]),
                "band_under_max_swr_hz": None if span is None else list(span),
