@@ -96,6 +96,8 @@ def extract(
     csv_out: o.CsvOut = None,
     plot_out: o.PlotOut = None,
     spice_out: Annotated[Optional[Path], typer.Option("--spice", help="Single file: write the winding's fitted equivalent circuit as a SPICE subcircuit.", rich_help_panel=o.OUTPUT_PANEL)] = None,
+    transformer: Annotated[Optional[str], typer.Option("--transformer", help="Check a built transformer of this topology (e.g. flux-1:49): a one-port into its load resistor, or two units back to back as a two-port; SWR against --max-swr.", rich_help_panel=LIMIT_PANEL)] = None,
+    max_swr: Annotated[Optional[float], typer.Option("--max-swr", help="With --transformer: pass when SWR ≤ this over the band (default 2).", rich_help_panel=LIMIT_PANEL)] = None,
     vs_model: Annotated[bool, typer.Option("--vs-model", help="Compare with the model of the design given by the design options.", rich_help_panel=o.DESIGN_PANEL)] = False,
     design_options: dict = None,
 ) -> None:
@@ -109,6 +111,13 @@ def extract(
     one-line error). Summaries use valid points only and say how many were excluded.
     """
     paths = list(files or [])
+    if transformer is not None:
+        from .transformer import run_transformer_check
+
+        raise typer.Exit(run_transformer_check(paths, transformer, max_swr, band, z0, vs_model, design_options, rows,
+                                               json_out, csv_out, plot_out))
+    if max_swr is not None:
+        raise CmcheckError("--max-swr is the limit of a --transformer check")
     if not paths and legs is None:
         raise CmcheckError("give one or more Touchstone files (or --legs A.s2p B.s2p)")
     if (open_file is None) != (short_file is None):

@@ -77,6 +77,21 @@ _TABLE = (
     Flag("c1", "--od/--id/--height or --core-factor", "c1_per_m", "1/m"),
     Flag("save_material", "--save-material", "", ""),
     Flag("spice", "--spice", "equivalent_circuit", ""),
+    # Transformers (transformer, extract --transformer)
+    Flag("topology", "--topology", "topology", ""),
+    Flag("primary_turns", "--turns", "", ""),
+    Flag("impedance_ratio", "--topology", "", ""),
+    Flag("source_impedance", "--z0", "z0_ohm", "Ω"),
+    Flag("load", "--load", "load", "Ω"),
+    Flag("resistance", "--load", "load", "Ω"),
+    Flag("lead_inductance", "--load-l", "", "H"),
+    Flag("shunt_capacitance", "--load-c", "", "F"),
+    Flag("leg_p", "--leg-to-ground", "", "Ω"),
+    Flag("leg_n", "--leg-to-ground", "", "Ω"),
+    Flag("line_z0", "--line-z0", "", "Ω"),
+    Flag("line_length", "--line-length", "", "m"),
+    Flag("velocity_factor", "--velocity-factor", "", ""),
+    Flag("max_swr", "--max-swr", "summary.max_swr", ""),
 )
 
 #: Library parameter name → its row.

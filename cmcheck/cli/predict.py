@@ -10,13 +10,32 @@ import typer
 
 from ..model.choke import predict as predict_choke
 from ..model.materials import builtin_materials, get_material
+from ..design.heat import Drive
+from ..errors import DesignError
 from ..reporting.choke_report import prediction_report
+from ..reporting.heat_report import with_heat
+from ..units import parse_current, parse_power, parse_resistance, parse_voltage
 from ..reporting.files import check_outputs, write_json
 from ..reporting.outputs import write_report
 from ..units import format_quantity
 from . import options as o
 from .app import app
 from .render import console, print_notes, show, table
+
+
+HEAT_PANEL = "Heat at power"
+
+
+def _drive(power, cm_voltage, cm_current, feed_impedance) -> Drive | None:
+    opts = {"cm_voltage_v": o.parse_option("--cm-voltage", parse_voltage, cm_voltage),
+            "cm_current_a": o.parse_option("--cm-current", parse_current, cm_current),
+            "feed_impedance_ohm": o.parse_option("--feed-impedance", parse_resistance, feed_impedance)}
+    p = o.parse_option("--power", parse_power, power)
+    if p is None:
+        if any(v is not None for v in opts.values()):
+            raise DesignError("--cm-voltage, --cm-current and --feed-impedance need --power (the power they apply at)")
+        return None
+    return Drive(p, **opts)
 
 
 @app.command()
@@ -33,6 +52,10 @@ def predict(
         Optional[Path],
         typer.Option("--touchstone", help="Write the choke as a series two-port .s2p (50 Ω) file.", rich_help_panel=o.OUTPUT_PANEL),
     ] = None,
+    power: Annotated[Optional[str], typer.Option("--power", help="Transmitter power, e.g. 100W: heat and flux of this choke.", rich_help_panel=HEAT_PANEL)] = None,
+    cm_voltage: Annotated[Optional[str], typer.Option("--cm-voltage", help="Common-mode RMS voltage across the choke at --power, e.g. 150V.", rich_help_panel=HEAT_PANEL)] = None,
+    cm_current: Annotated[Optional[str], typer.Option("--cm-current", help="Common-mode RMS current through the choke at --power, e.g. 0.3A.", rich_help_panel=HEAT_PANEL)] = None,
+    feed_impedance: Annotated[Optional[str], typer.Option("--feed-impedance", help="Feed-point impedance: worst case puts all of √(P·Z) across the choke, e.g. 300.", rich_help_panel=HEAT_PANEL)] = None,
 ) -> None:
     """Predict a choke's common-mode impedance R + jX from core, material and winding.
 
@@ -47,7 +70,11 @@ def predict(
     material = design_options["material"]
     inputs = [material] if material and Path(material).is_file() else []
     check_outputs([json_out, csv_out, plot_out, touchstone_out], inputs)
-    report = prediction_report(predict_choke(design, b, points), rows)
+    drive = _drive(power, cm_voltage, cm_current, feed_impedance)
+    result = predict_choke(design, b, points)
+    report = prediction_report(result, rows)
+    if drive is not None:
+        report = with_heat(report, result, drive)
     # Files first, all or none: a closed pipe (| head) must not cost the user the results.
     write_report(report, json=json_out, csv={"curve": csv_out}, plot=plot_out, touchstone=touchstone_out)
     show(report)

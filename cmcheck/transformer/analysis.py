@@ -173,9 +173,10 @@ def analyse(topology: Topology, frequency_hz, transformer, load: Load, *, source
     peak flux and dissipation: :mod:`cmcheck.design.heat`.
     """
     if not (math.isfinite(source_impedance) and source_impedance > 0):
-        raise TransformerError(f"source_impedance must be positive, got {source_impedance!r} Ω")
+        raise TransformerError(f"source_impedance must be positive, got {source_impedance!r} Ω",
+                               parameter="source_impedance")
     if not (math.isfinite(power_w) and power_w > 0):
-        raise TransformerError(f"power_w must be positive, got {power_w!r} W")
+        raise TransformerError(f"power_w must be positive, got {power_w!r} W", parameter="power_w")
     c = build_circuit(topology, frequency_hz, transformer)
     f = c.frequency_hz
     zl = load.impedance(f)

@@ -127,7 +127,8 @@ class FluxCoupled:
 
     def __post_init__(self) -> None:
         if not isinstance(self.primary_turns, (int, np.integer)) or self.primary_turns < 1:
-            raise TransformerError(f"primary_turns must be a whole number ≥ 1, got {self.primary_turns!r}")
+            raise TransformerError(f"primary_turns must be a whole number ≥ 1, got {self.primary_turns!r}",
+                                   parameter="primary_turns")
         for name in ("impedance_ratio", "l0_per_turn2", "leakage_h"):
             v = getattr(self, name)
             if not (math.isfinite(v) and v > 0):

@@ -14,10 +14,12 @@ from ..errors import TransformerError
 
 __all__ = ["Load"]
 
+_PARAM = {"load impedance": "load", "leg_p": "leg_p", "leg_n": "leg_n"}
+
 
 def _finite_nonzero(name: str, z) -> None:
     if z is not None and not (np.all(np.isfinite(z)) and np.all(np.asarray(z) != 0)):
-        raise TransformerError(f"{name} must be finite and non-zero")
+        raise TransformerError(f"{name} must be finite and non-zero", parameter=_PARAM.get(name))
 
 
 @dataclass(frozen=True, eq=False)
@@ -71,7 +73,7 @@ class Load:
         for name, v, lo in (("resistance", resistance, 0.0), ("lead_inductance", lead_inductance, -1),
                             ("shunt_capacitance", shunt_capacitance, -1)):
             if not (math.isfinite(v) and (v > lo if lo == 0.0 else v >= 0)):
-                raise TransformerError(f"{name} must be {'positive' if lo == 0.0 else '≥ 0'}, got {v!r}")
+                raise TransformerError(f"{name} must be {'positive' if lo == 0.0 else '≥ 0'}, got {v!r}", parameter=name)
         return _ResistorLoad(z=complex(resistance), leg_p=leg_p, leg_n=leg_n, label=f"{resistance:g} Ω",
                              lead_l=lead_inductance, shunt_c=shunt_capacitance)
 
@@ -87,7 +89,7 @@ class Load:
 
         s = read_touchstone(path)
         if s.n_ports != 1:
-            raise TransformerError(f"{path}: a load file must be a one-port, got {s.n_ports} ports")
+            raise TransformerError(f"{path}: a load file must be a one-port, got {s.n_ports} ports", parameter="load")
         g = s.s[:, 0, 0]
         if np.any(g == 1):
             raise TransformerError(f"{path}: the load is an open circuit at some frequency")
