@@ -81,7 +81,7 @@ def main() -> None:
     # faster taken, so the ratio does not flatter the search.
     l0 = np.tile(geo.l0, len(mats))[:, None]
     r = (np.tile(geo.length, len(mats))[:, None]) * np.asarray(spec.conductor.resistance(f, 1.0))
-    cp = np.tile(geo.cp, len(mats))[:, None]
+    cp = geo.cp.reshape(-1)[:, None]
     mu = np.repeat(np.stack([m.permeability(f) for m in mats]), geo.turns.size, axis=0)
     jw = 2j * np.pi * f
 
