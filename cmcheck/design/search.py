@@ -120,6 +120,10 @@ class SizeSpec:
     winding_angle : float, optional
         Angle every winding spans round its core [rad] for the Cp estimate; None: spread over
         300° (close-wound where the turns fill more), as :class:`ChokeDesign`.
+    cp : float, optional
+        One stray capacitance for every candidate [F] (a measured value; tests pin it so a
+        better Cp model moves no search test); None: the energy-method estimate per design.
+        ``cp_factor`` scales either.
     """
 
     band: Band
@@ -138,6 +142,7 @@ class SizeSpec:
     max_rise_k: float = DEFAULT_MAX_RISE_K
     keep_hot: bool = False
     winding_angle: float | None = None
+    cp: float | None = None
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "materials", tuple(self.materials))
@@ -165,6 +170,8 @@ class SizeSpec:
             raise DesignError(f"points must be at least 2, got {self.points!r}", parameter="points")
         if not (isinstance(self.top, (int, np.integer)) and self.top >= 1):
             raise DesignError(f"top must be a whole number ≥ 1, got {self.top!r}", parameter="top")
+        if self.cp is not None and not (math.isfinite(self.cp) and self.cp >= 0):
+            raise DesignError(f"cp must be ≥ 0 F, got {self.cp!r}", parameter="cp")
         if self.winding_angle is not None and not (0 < self.winding_angle < 2 * math.pi):
             raise DesignError(f"winding_angle must lie between 0 and 2π rad, got {self.winding_angle!r}",
                               parameter="winding_angle")
@@ -266,6 +273,8 @@ def _geometry(spec: SizeSpec, *, turns_factor: float = 1.0, limits: bool = True)
                                              ins_eps, cm.core_class, cm.eps_r, spec.winding_angle)
             by_key[key] = np.where(has[row], np.atleast_1d(parts.total), 0.0)
         cp[m] = by_key[key]
+    if spec.cp is not None:
+        cp[:] = spec.cp
     s_idx, stack, n_fit, bend = s_idx[base], stack[base], n_fit[base], bend[base]
     geo = _Geometry(
         size_idx=s_idx, stack=stack, turns=turns, n_fit=n_fit,
@@ -369,7 +378,7 @@ def size(spec: SizeSpec, progress: Callable[[int, int], None] | None = None) -> 
     """
     t0 = time.perf_counter()
     for mat in spec.materials:
-        if cp_material(mat).assumed:
+        if spec.cp is None and cp_material(mat).assumed:
             warnings.warn(CmcheckWarning(unknown_class_message(mat.name), parameter="materials"), stacklevel=2)
     band = spec.band
     f_grid = band.grid(spec.points)
@@ -474,7 +483,7 @@ def _short_list(spec, geo, mat, g, r_min, r_hz, x_min, x_hz, margin, heat) -> tu
 def _design(spec: SizeSpec, geo: _Geometry, m: int, g: int) -> ChokeDesign:
     core = spec.sizes.cores[int(geo.size_idx[g])].stacked(int(geo.stack[g]))
     # With the plain estimate, leave Cp to the model (as predict would); a scaled one is given.
-    cp = None if spec.cp_factor == 1.0 else float(geo.cp[m, g])
+    cp = None if spec.cp_factor == 1.0 and spec.cp is None else float(geo.cp[m, g])
     return ChokeDesign(core, spec.materials[m], Winding(int(geo.turns[g]), spec.conductor, cp),
                        winding_angle=spec.winding_angle)
 
@@ -485,7 +494,15 @@ def _make(spec, geo, m, g, r_min, r_hz, x_min, x_hz, margin, heat) -> SizedDesig
         design=design, kind=spec.sizes.kind[int(geo.size_idx[g])], min_resistance_ohm=r_min, min_resistance_hz=r_hz,
         min_impedance_ohm=x_min, min_impedance_hz=x_hz, margin=margin, max_turns_fit=int(geo.n_fit[g]),
         bend_radius_m=float(geo.bend[g]), prediction=predict(design, spec.band, spec.points), heat=heat,
+        cp_source=_cp_source(spec),
     )
+
+
+def _cp_source(spec: SizeSpec) -> str | None:
+    """How the search's Cp differs from ChokeDesign's own estimate, or None when it does not."""
+    if spec.cp is not None:
+        return "given" if spec.cp_factor == 1.0 else "given, scaled by cp_factor"
+    return None if spec.cp_factor == 1.0 else "estimated (energy method), scaled by cp_factor"
 
 
 def _single(spec: SizeSpec, geo: _Geometry, m: int, g: int, f: np.ndarray) -> SizedDesign:

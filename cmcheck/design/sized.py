@@ -36,6 +36,7 @@ class SizedDesign:
     bend_radius_m: float
     prediction: Prediction
     heat: dict | None = None
+    cp_source: str | None = None
 
     @property
     def core(self) -> Core:
@@ -65,8 +66,8 @@ class SizedDesign:
             max_turns_one_layer=self.max_turns_fit,
             bend_radius_m=self.bend_radius_m,
         )
-        if self.design.cp_source == "given":
-            d["cp_source"] = "estimated, scaled by cp_factor"
+        if self.cp_source is not None:
+            d["cp_source"] = self.cp_source
         if self.heat is not None:
             d.update(self.heat)
         return d

@@ -15,7 +15,7 @@ import numpy as np
 
 from .cores import Core
 from ..curve import ImpedanceCurve, resistive_ranges, self_resonance
-from ..errors import CmcheckWarning
+from ..errors import CmcheckWarning, WindingError
 from .materials import Material
 from ..units import Band
 from .conductors import MU0
@@ -151,6 +151,11 @@ class ChokeDesign:
     winding: Winding
     turn_length: float | None = None
     winding_angle: float | None = None
+
+    def __post_init__(self) -> None:
+        a = self.winding_angle
+        if a is not None and not (isinstance(a, (int, float)) and 0 < a < 2 * math.pi):
+            raise WindingError(f"winding_angle must lie between 0 and 2π rad, got {a!r}", parameter="winding_angle")
 
     @property
     def l0(self) -> float:

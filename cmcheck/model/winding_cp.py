@@ -104,8 +104,8 @@ def conductor_insulation(conductor) -> tuple[float, float, float]:
     return d, t, float(getattr(conductor, "eps_r", DEFAULT_INSULATION_EPS_R))
 
 
-def default_winding_angle(core_id, conductor_od, turns):
-    """Φw [rad]: spread over 300° of the ring, or close-wound where the turns fill more.
+def default_winding_angle(core_id, conductor_od, turns, spread=SPREAD_ANGLE):
+    """Φw [rad]: spread over ``spread`` (default 300°) of the ring, or close-wound where the turns fill more.
 
     As :func:`cmcheck.model.selfcapacitance.self_capacitance`'s default, but safe for every
     candidate of a search (a conductor nearly as wide as half the window is clipped to a
@@ -119,6 +119,9 @@ def default_winding_angle(core_id, conductor_od, turns):
         Conductor outside diameter [m].
     turns : array_like
         N [dimensionless].
+    spread : array_like
+        The angle asked for [rad]; turns cannot lie closer than touching, so the result is
+        never below the close-wound angle.
 
     References
     ----------
@@ -130,7 +133,7 @@ def default_winding_angle(core_id, conductor_od, turns):
     ratio = np.clip(d / np.maximum(np.asarray(core_id, float) - d, 1e-300), 0.0, 1.0)
     pitch = 2.0 * np.arcsin(ratio)
     close = np.minimum((np.maximum(np.asarray(turns, float), 1.0) - 1.0) * pitch, 2.0 * math.pi - pitch)
-    phi = np.clip(np.maximum(SPREAD_ANGLE, close), 1e-6, 2.0 * math.pi - 1e-6)
+    phi = np.clip(np.maximum(spread, close), 1e-6, 2.0 * math.pi - 1e-6)
     return float(phi) if phi.ndim == 0 else phi
 
 
@@ -155,7 +158,8 @@ def winding_self_capacitance(section_od, section_id, height, turns, conductor_di
     core_eps_r : float
         εr of a dielectric core [dimensionless].
     winding_angle : array_like or None
-        Φw [rad]; None: :func:`default_winding_angle`.
+        Φw [rad], raised to the close-wound angle where the turns cannot fit in it; None: 300°
+        (:func:`default_winding_angle`).
 
     Returns
     -------
@@ -174,7 +178,7 @@ def winding_self_capacitance(section_od, section_id, height, turns, conductor_di
     d = np.asarray(conductor_diameter, float)
     t = np.maximum(np.asarray(insulation, float), MIN_INSULATION_RATIO * d)
     do = d + 2.0 * t
-    phi = default_winding_angle(section_id, do, turns) if winding_angle is None else winding_angle
+    phi = default_winding_angle(section_id, do, turns, SPREAD_ANGLE if winding_angle is None else winding_angle)
     return self_capacitance(section_od, section_id, height, turns, d, t, insulation_eps_r, winding_angle=phi,
                             core_eps_r=core_eps_r, core_class=core_class, lead_length=DEFAULT_LEAD_LENGTH,
                             lead_spacing=np.maximum(DEFAULT_LEAD_SPACING, 2.0 * do))
