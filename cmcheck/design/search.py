@@ -31,7 +31,7 @@ from ..model.winding_cp import conductor_insulation, cp_material, unknown_class_
 from ..model.conductors import Conductor
 from ..model.cores import Core
 from ..errors import CmcheckWarning, DesignError
-from ..model.materials import Material
+from ..model.materials import Material, purchase_label
 from .catalogue import CoreSizes, RingSizes, bend_radius, builtin_ring_sizes, load_ring_sizes
 from .diagnosis import Diagnosis, SearchContext, diagnose, diagnose_heat, diagnose_nothing_fits, format_rise
 from .heat import DEFAULT_MAX_RISE_K, Drive, heat_check
@@ -124,6 +124,9 @@ class SizeSpec:
         One stray capacitance for every candidate [F] (a measured value; tests pin it so a
         better Cp model moves no search test); None: the energy-method estimate per design.
         ``cp_factor`` scales either.
+    material_series : str
+        The ISO 3 series the family members among ``materials`` were taken from, for naming
+        what to buy (:func:`cmcheck.model.materials.purchase_label`).
     """
 
     band: Band
@@ -143,6 +146,7 @@ class SizeSpec:
     keep_hot: bool = False
     winding_angle: float | None = None
     cp: float | None = None
+    material_series: str = "R10"
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "materials", tuple(self.materials))
@@ -494,7 +498,7 @@ def _make(spec, geo, m, g, r_min, r_hz, x_min, x_hz, margin, heat) -> SizedDesig
         design=design, kind=spec.sizes.kind[int(geo.size_idx[g])], min_resistance_ohm=r_min, min_resistance_hz=r_hz,
         min_impedance_ohm=x_min, min_impedance_hz=x_hz, margin=margin, max_turns_fit=int(geo.n_fit[g]),
         bend_radius_m=float(geo.bend[g]), prediction=predict(design, spec.band, spec.points), heat=heat,
-        cp_source=_cp_source(spec),
+        cp_source=_cp_source(spec), buy=purchase_label(spec.materials[m], spec.material_series),
     )
 
 
