@@ -266,12 +266,13 @@ def search_materials(names=None, series: str = SEARCH_SERIES) -> list[Material]:
     Returns
     -------
     list of Material
-        In the order given, duplicates dropped.
+        In the order given; a member a family grid already holds is not repeated, but a name
+        given twice stays twice (the search refuses it).
     """
     from .families import preferred_numbers
 
     fams = builtin_families()
-    out: dict[str, Material] = {}
+    out: list[Material] = []
     for name in (list(SEARCH_FAMILIES) if names is None else names):
         key = str(name).strip().lower()
         if key in fams:
@@ -279,11 +280,11 @@ def search_materials(names=None, series: str = SEARCH_SERIES) -> list[Material]:
             lo, hi = _SEARCH_RANGES.get(key, fam.mu_range)
             for mu in preferred_numbers(max(lo, fam.mu_range[0]), min(hi, fam.mu_range[1]), series):
                 m = family_material(fam, mu)
-                out.setdefault(m.name, m)
+                if all(m.name != o.name for o in out):
+                    out.append(m)
         else:
-            m = get_material(name)
-            out.setdefault(m.name, m)
-    return list(out.values())
+            out.append(get_material(name))
+    return out
 
 
 _CLASS_COMMENT = re.compile(r"^class\s*[:=]\s*(\S+)\s*$", re.IGNORECASE)
