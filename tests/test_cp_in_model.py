@@ -92,7 +92,7 @@ def test_choke_cp_follows_the_material_class():
     # εr of the family enters: the dielectric gap part scales with (εr − 1) (Cheng, Field and
     # Wave Electromagnetics, §4-3, energy in the annular sector).
     ref = self_capacitance(*RING, 25, 0.3e-3, 0.02e-3, 3.0, core_eps_r=12.0)
-    assert nizn.cp_breakdown()["gap"] == pytest.approx(ref.gap, rel=1e-12)
+    assert nizn.cp_breakdown()["gap"] == pytest.approx(ref.gap, rel=1e-12, abs=0)
     # A given Cp still wins.
     assert ChokeDesign(RingCore(*RING), get_material("mnzn-1000"), Winding(25, Wire(0.3e-3), 1e-12)).cp == 1e-12
 
@@ -104,7 +104,7 @@ def test_unknown_class_warns_and_assumes_a_dielectric():
         p = predict(d, parse_band("1-30MHz"))
     assert "assumed" in p.summary["cp_source"]
     declared = ChokeDesign(RingCore(*RING), Material("x", flat.model, electrical_class="dielectric"), d.winding)
-    assert d.cp == pytest.approx(declared.cp, rel=1e-12)
+    assert d.cp == pytest.approx(declared.cp, rel=1e-12, abs=0)
     with warnings.catch_warnings():
         warnings.simplefilter("error")
         predict(declared, parse_band("1-30MHz"))  # a declared class does not warn
@@ -114,7 +114,7 @@ def test_predict_reports_the_parts_and_they_add_up():
     d = ChokeDesign(RingCore(61e-3, 35.55e-3, 12.7e-3), get_material("nizn-800"), Winding(8, Cable(5e-3)))
     s = predict(d, parse_band("1-30MHz")).summary
     parts = s["cp_parts_f"]
-    assert sum(parts[k] for k in ("gap", "air", "chain", "core", "leads")) == pytest.approx(s["cp_f"], rel=1e-12)
+    assert sum(parts[k] for k in ("gap", "air", "chain", "core", "leads")) == pytest.approx(s["cp_f"], rel=1e-12, abs=0)
     assert math.degrees(parts["winding_angle_rad"]) == pytest.approx(300.0)
     # Spreading the turns less (up to close-wound) changes Cp (Knight: the end gap sets it).
     tight = ChokeDesign(d.core, d.material, d.winding, winding_angle=math.radians(150.0))
