@@ -27,7 +27,7 @@ from typing import Callable, Sequence
 import numpy as np
 
 from ..model.choke import ChokeDesign, air_core_inductance, choke_impedance, predict
-from ..model.winding_cp import conductor_insulation, cp_material, unknown_class_message, winding_self_capacitance
+from ..model.winding_cp import candidates_cp, cp_material, unknown_class_message
 from ..model.conductors import Conductor
 from ..model.cores import Core
 from ..errors import CmcheckWarning, DesignError
@@ -40,22 +40,9 @@ from ..units import Band
 from ..model.winding import Winding, max_turns_single_layer
 
 __all__ = [
-    "CoreSizes",
-    "DEFAULT_BEND_RATIO",
-    "DEFAULT_MAX_CORES",
-    "DEFAULT_TARGET_OHM",
-    "Diagnosis",
-    "RingSizes",
-    "SizeResult",
-    "SizeSpec",
-    "SizedDesign",
-    "bend_radius",
-    "builtin_ring_sizes",
-    "candidate_geometry",
-    "format_rise",
-    "load_ring_sizes",
-    "scan_candidates",
-    "size",
+    "CoreSizes", "DEFAULT_BEND_RATIO", "DEFAULT_MAX_CORES", "DEFAULT_TARGET_OHM", "Diagnosis", "RingSizes",
+    "SizeResult", "SizeSpec", "SizedDesign", "bend_radius", "builtin_ring_sizes", "candidate_geometry",
+    "format_rise", "load_ring_sizes", "scan_candidates", "size",
 ]
 
 #: Smallest bend radius of a cable wound through a core, as a multiple of its outside
@@ -258,25 +245,10 @@ def _geometry(spec: SizeSpec, *, turns_factor: float = 1.0, limits: bool = True)
     base = np.repeat(np.flatnonzero(keep), counts)
     starts = np.repeat(np.cumsum(counts) - counts, counts)
     turns = (np.arange(base.size) - starts + 1).astype(int)
-    # The equivalent ring section of every kept stack through the core contract (a shape
-    # without one gets no Cp, as ChokeDesign.cp gives 0 for it), then the energy-method Cp of
-    # every winding at once, once per distinct (electrical class, εr) among the materials.
+    # Energy-method Cp of every winding at once, per material (its electrical class and εr).
     geoms = [cores[i].turn_geometry(d_out) for i in np.flatnonzero(keep)]
-    has = np.array([g is not None for g in geoms], bool)
-    sec = np.array([(g.section.od, g.section.id, g.section.height * g.rings) if g is not None else (2.0, 1.0, 1.0)
-                    for g in geoms], float).reshape(len(geoms), 3)
-    row = np.repeat(np.arange(len(geoms)), counts)
-    d_metal, insulation, ins_eps = conductor_insulation(cond)
-    cp = np.zeros((len(spec.materials), turns.size))
-    by_key: dict = {}
-    for m, mat in enumerate(spec.materials):
-        cm = cp_material(mat)
-        key = (cm.core_class, cm.eps_r)
-        if key not in by_key:
-            parts = winding_self_capacitance(sec[row, 0], sec[row, 1], sec[row, 2], turns, d_metal, insulation,
-                                             ins_eps, cm.core_class, cm.eps_r, spec.winding_angle)
-            by_key[key] = np.where(has[row], np.atleast_1d(parts.total), 0.0)
-        cp[m] = by_key[key]
+    cp = candidates_cp(geoms, np.repeat(np.arange(len(geoms)), counts), turns, cond, spec.materials,
+                       spec.winding_angle)
     if spec.cp is not None:
         cp[:] = spec.cp
     s_idx, stack, n_fit, bend = s_idx[base], stack[base], n_fit[base], bend[base]

@@ -34,6 +34,7 @@ from .selfcapacitance import SPREAD_ANGLE, SelfCapacitance, self_capacitance
 
 __all__ = [
     "ASSUMED_EPS_R",
+    "candidates_cp",
     "CpMaterial",
     "DEFAULT_LEAD_LENGTH",
     "MIN_INSULATION_RATIO",
@@ -210,3 +211,47 @@ def unknown_class_message(name: str) -> str:
     return (f"material {name} does not declare its electrical class: its Cp assumes a dielectric core "
             f"(εr {ASSUMED_EPS_R:g}, NiZn-like); a conductive core (MnZn, metal powder; '# class: conductive' "
             "in a material file) gives several times more")
+
+
+def candidates_cp(geometries, row, turns, conductor, materials, winding_angle=None) -> np.ndarray:
+    """Cp [F] of many windings for several materials at once, shape (materials, windings).
+
+    Parameters
+    ----------
+    geometries : sequence of TurnGeometry or None
+        One per core (None: no geometry, Cp 0, as :func:`design_self_capacitance` gives None).
+    row : array_like of int
+        For each winding, the index of its core in ``geometries``.
+    turns : array_like of int
+        N of each winding [dimensionless].
+    conductor : Conductor
+    materials : sequence of Material
+    winding_angle : float, optional
+        Φw [rad] for every winding; None: :func:`default_winding_angle`.
+
+    Notes
+    -----
+    Evaluated once per distinct (electrical class, εr) among the materials; the numbers are
+    those of :func:`design_self_capacitance` for each winding (the sizing search's tests check it).
+
+    References
+    ----------
+    As :func:`winding_self_capacitance`.
+    """
+    has = np.array([g is not None for g in geometries], bool)
+    sec = np.array([(g.section.od, g.section.id, g.section.height * g.rings) if g is not None else (2.0, 1.0, 1.0)
+                    for g in geometries], float).reshape(len(geometries), 3)
+    row = np.asarray(row, int)
+    turns = np.asarray(turns)
+    d, t, eps = conductor_insulation(conductor)
+    out = np.zeros((len(materials), turns.size))
+    done: dict = {}
+    for m, mat in enumerate(materials):
+        cm = cp_material(mat)
+        key = (cm.core_class, cm.eps_r)
+        if key not in done:
+            parts = winding_self_capacitance(sec[row, 0], sec[row, 1], sec[row, 2], turns, d, t, eps, cm.core_class,
+                                             cm.eps_r, winding_angle)
+            done[key] = np.where(has[row], np.atleast_1d(parts.total), 0.0) if row.size else np.zeros(0)
+        out[m] = done[key]
+    return out
