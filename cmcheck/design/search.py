@@ -64,9 +64,7 @@ DEFAULT_MAX_CORES = 4  # common practice, no published source
 _CHUNK_POINTS = 400_000
 
 
-# ---------------------------------------------------------------------------------------------
-# Specification (the results, SizedDesign and SizeResult, are in .sized)
-# ---------------------------------------------------------------------------------------------
+# The specification; the results, SizedDesign and SizeResult, are in .sized.
 
 
 @dataclass(frozen=True, eq=False)
@@ -179,11 +177,6 @@ class SizeSpec:
     @property
     def metric_name(self) -> str:
         return "R" if self.criterion == "resistance" else "|Z|"
-
-
-# ---------------------------------------------------------------------------------------------
-# The search
-# ---------------------------------------------------------------------------------------------
 
 
 @dataclass(frozen=True, eq=False)
@@ -469,9 +462,15 @@ def _make(spec, geo, m, g, r_min, r_hz, x_min, x_hz, margin, heat) -> SizedDesig
     return SizedDesign(
         design=design, kind=spec.sizes.kind[int(geo.size_idx[g])], min_resistance_ohm=r_min, min_resistance_hz=r_hz,
         min_impedance_ohm=x_min, min_impedance_hz=x_hz, margin=margin, max_turns_fit=int(geo.n_fit[g]),
-        bend_radius_m=float(geo.bend[g]), prediction=predict(design, spec.band, spec.points), heat=heat,
+        bend_radius_m=float(geo.bend[g]), prediction=_predict_quietly(design, spec), heat=heat,
         cp_source=_cp_source(spec), buy=purchase_label(spec.materials[m], spec.material_series),
     )
+
+
+def _predict_quietly(design: ChokeDesign, spec: SizeSpec):
+    with warnings.catch_warnings():  # size() has warned once per material of unknown class
+        warnings.filterwarnings("ignore", message=".*does not declare its electrical class", category=CmcheckWarning)
+        return predict(design, spec.band, spec.points)
 
 
 def _cp_source(spec: SizeSpec) -> str | None:

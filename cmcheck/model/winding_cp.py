@@ -208,9 +208,9 @@ def design_self_capacitance(core, conductor, turns, material, winding_angle=None
 
 def unknown_class_message(name: str) -> str:
     """The one-line warning for a material of unknown electrical class."""
-    return (f"material {name} does not declare its electrical class: its Cp assumes a dielectric core "
-            f"(εr {ASSUMED_EPS_R:g}, NiZn-like); a conductive core (MnZn, metal powder; '# class: conductive' "
-            "in a material file) gives several times more")
+    return (f"material {name} does not declare its electrical class ('# class: dielectric' or 'conductive' in its "
+            f"CSV file): its Cp assumes a dielectric core (εr {ASSUMED_EPS_R:g}, NiZn-like); a conductive core "
+            "(MnZn, metal powder) gives several times more")
 
 
 def candidates_cp(geometries, row, turns, conductor, materials, winding_angle=None) -> np.ndarray:
