@@ -154,3 +154,33 @@ def test_factor_core_uses_its_equivalent_ring():
     d = ChokeDesign(c, get_material("nizn-800"), Winding(6, Wire(0.4e-3, 0.02e-3)))
     assert d.cp > 0 and d.cp_source.startswith("estimated")
     assert ChokeDesign(FactorCore(800.0), d.material, d.winding).cp_source == "none"
+
+
+def test_bare_wire_takes_the_stated_insulation_floor():
+    # Bare wire on a conductive core would be a short (Massarini & Kazimierczuk's turn-to-core
+    # cell diverges as the insulation → 0): the model takes 1 % of the diameter (module notes,
+    # common practice, no published source), the same as that insulation given explicitly.
+    from cmcheck.model.winding_cp import MIN_INSULATION_RATIO
+
+    mat = get_material("mnzn-1000")
+    bare = ChokeDesign(RingCore(*RING), mat, Winding(20, Wire(0.5e-3)))
+    floor = ChokeDesign(RingCore(*RING), mat, Winding(20, Wire(0.5e-3, MIN_INSULATION_RATIO * 0.5e-3)))
+    assert np.isfinite(bare.cp) and bare.cp == pytest.approx(floor.cp, rel=1e-9, abs=0)
+    thicker = ChokeDesign(RingCore(*RING), mat, Winding(20, Wire(0.5e-3, 0.05e-3)))
+    assert thicker.cp < bare.cp  # more insulation, less turn-to-core capacitance
+
+
+def test_search_warns_once_for_a_material_of_unknown_class():
+    from cmcheck.design.catalogue import builtin_ring_sizes
+    from cmcheck.design.search import size
+
+    flat = Material("flat", Tabulated(np.array([1e4, 1e9]), np.array([800.0, 800.0]), np.array([200.0, 200.0])))
+    spec = SizeSpec(parse_band("3.5-30MHz"), Cable(5e-3), [flat], builtin_ring_sizes(), target_ohm=300.0, max_cores=1)
+    with warnings.catch_warnings(record=True) as rec:
+        warnings.simplefilter("always")
+        res = size(spec)
+    assert res.designs
+    assert sum("does not declare its electrical class" in str(w.message) for w in rec) == 1
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        size(SizeSpec(spec.band, spec.conductor, [flat], spec.sizes, target_ohm=300.0, max_cores=1, cp=1e-12))
