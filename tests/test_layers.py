@@ -159,7 +159,9 @@ def test_remedies_speak_parameters_in_python_and_options_on_the_command_line():
 
 
 def test_cli_no_solution_words_remedies_as_options(run_cli):
-    code, out, err = run_cli("size", "--band", "3.5-30MHz", "--target-r", "2k", "--cable-od", "5mm")
+    # 5 kΩ: beyond every design of the default space whatever the Cp estimate, so the test
+    # depends on no physics (it checks wording).
+    code, out, err = run_cli("size", "--band", "3.5-30MHz", "--target-r", "5k", "--cable-od", "5mm")
     assert code == 1
     relax = out.split("to relax:")[1]
     assert "--target-r" in relax and "target_ohm" not in relax

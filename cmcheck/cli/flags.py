@@ -40,6 +40,7 @@ _TABLE = (
     Flag("insulation", "--insulation", "design.insulation_m", "m"),
     Flag("cable_od", "--cable-od", "design.cable_od_m", "m"),
     Flag("cp", "--cp", "design.cp_f", "F"),
+    Flag("winding_angle", "--winding-angle", "design.cp_parts_f.winding_angle_rad", "rad (option: degrees)"),
     Flag("band", "--band", "band_hz", "Hz"),
     Flag("points", "--points", "", ""),
     # Sizing (size)

@@ -6,6 +6,8 @@ the same way everywhere (``predict``, ``extract --vs-model``, ``compare``...).
 
 from __future__ import annotations
 
+import math
+
 import functools
 import inspect
 from pathlib import Path
@@ -75,8 +77,16 @@ Cp = Annotated[
     Optional[str],
     typer.Option(
         "--cp",
-        help="Stray capacitance across the winding, e.g. 2.8pF; default: a single-layer first estimate, often low (measure it); 0 turns it off.",
+        help="Stray capacitance across the winding, e.g. 2.8pF; default: estimated from the geometry, the conductor and the material's electrical class (energy method; measure it where you can); 0 turns it off.",
         rich_help_panel=DESIGN_PANEL,
+    ),
+]
+WindingAngle = Annotated[
+    Optional[float],
+    typer.Option(
+        "--winding-angle",
+        help="Angle the turns span round the core, first to last, in degrees, for the Cp estimate (default 300, or close-wound where the turns fill more).",
+        min=1.0, max=359.0, rich_help_panel=DESIGN_PANEL,
     ),
 ]
 BandOpt = Annotated[
@@ -109,6 +119,7 @@ DESIGN_OPTIONS: tuple[tuple[str, Any, Any], ...] = (
     ("insulation", Insulation, "0"),
     ("cable_od", CableOD, None),
     ("cp", Cp, None),
+    ("winding_angle", WindingAngle, None),
 )
 
 
@@ -183,6 +194,7 @@ def design_from_options(
     length: str | None = None,
     hole: str | None = None,
     hole_spacing: str | None = None,
+    winding_angle: float | None = None,
 ) -> ChokeDesign:
     """Build a :class:`~cmcheck.model.choke.ChokeDesign` from option text; errors name the option."""
     if not material:
@@ -204,7 +216,8 @@ def design_from_options(
         except UnitError as exc:
             raise UnitError(f"--cp: {exc}") from None
     winding = Winding(turns, conductor, cap)
-    return ChokeDesign(core, get_material(material), winding)
+    angle = None if winding_angle is None else math.radians(winding_angle)
+    return ChokeDesign(core, get_material(material), winding, winding_angle=angle)
 
 
 def core_from_options(*, od=None, id=None, height=None, cores: int = 1, core_factor=None, window=None,

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 import time
 import warnings
 from pathlib import Path
@@ -12,7 +13,7 @@ import typer
 
 from ..design.compare import DEFAULT_LINE_R_MAX, DEFAULT_LINE_X_MAX, compare_designs
 from ..errors import CmcheckWarning, DesignError, UnitError
-from ..model.materials import builtin_materials, get_material
+from ..model.materials import builtin_materials, get_material, search_materials
 from ..reporting.files import check_outputs
 from ..reporting.outputs import write_report
 from ..reporting.compare_report import comparison_report
@@ -34,8 +35,9 @@ MaterialsOpt = Annotated[
     Optional[str],
     typer.Option(
         "--materials",
-        help="Comma-separated built-in material names and/or CSV files (frequency_hz,mu_prime,mu_double_prime); "
-        "default: every built-in generic material.",
+        help="Comma-separated materials: family names (nizn, mnzn, iron-powder: the family on the ISO 3 R10 grid), "
+        "members (nizn-650) and/or CSV files (frequency_hz,mu_prime,mu_double_prime); "
+        "size default: the NiZn and MnZn families; compare default: every built-in listed material.",
         rich_help_panel=SEARCH_PANEL,
     ),
 ]
@@ -85,6 +87,8 @@ def _predict_command(d, band, cond) -> str:
     conductor = (f"--cable-od {cond.od * 1e3:.4g}mm" if isinstance(cond, Cable)
                  else f"--wire {cond.diameter * 1e3:.4g}mm" + (f" --insulation {cond.insulation * 1e3:.4g}mm" if cond.insulation else ""))
     cp = f" --cp {d.design.cp * 1e12:.3g}pF" if d.design.cp_source == "given" else ""
+    if d.design.winding_angle is not None:
+        cp += f" --winding-angle {math.degrees(d.design.winding_angle):.4g}"
     return (f"cmcheck predict -m {d.design.material.name} {o.core_options(c)} --turns {w.turns} {conductor}{cp} "
             f"--band {band}")
 
@@ -138,6 +142,7 @@ def size_command(
     cm_current: Annotated[Optional[str], typer.Option("--cm-current", help="Common-mode RMS current through the choke at --power, e.g. 0.3A.", rich_help_panel=HEAT_PANEL)] = None,
     feed_impedance: Annotated[Optional[str], typer.Option("--feed-impedance", help="Feed-point impedance: worst case puts all of √(P·Z) across the choke, e.g. 300.", rich_help_panel=HEAT_PANEL)] = None,
     max_rise: Annotated[float, typer.Option("--max-rise", help=f"Drop designs whose core warms more than this, K (default {DEFAULT_MAX_RISE_K:g}, common practice).", rich_help_panel=HEAT_PANEL)] = DEFAULT_MAX_RISE_K,
+    winding_angle: o.WindingAngle = None,
     keep_hot: Annotated[bool, typer.Option("--keep-hot", help="List designs above --max-rise too, flagged, instead of dropping them.", rich_help_panel=HEAT_PANEL)] = False,
     json_out: o.JsonOut = None,
     plot_out: o.PlotOut = None,
@@ -160,7 +165,7 @@ def size_command(
     if not target > 0:
         raise DesignError(f"{'--target-z' if target_z is not None else '--target-r'} must be positive, got {target:g} Ω")
     conductor = _conductor(wire, insulation, cable_od)
-    mats = _materials(materials)
+    mats = search_materials(None if materials is None else _material_names(materials))
     table_ = builtin_ring_sizes() if builtin_sizes else None
     if sizes is not None:
         user = load_ring_sizes(sizes)
@@ -182,6 +187,7 @@ def size_command(
         band=b, conductor=conductor, materials=mats, sizes=table_, target_ohm=target, criterion=criterion,
         max_cores=max_cores, max_turns=max_turns, min_bend_radius=_bend(min_bend_radius, conductor),
         cp_factor=cp_factor, points=points, top=top, drive=drive, max_rise_k=max_rise, keep_hot=keep_hot,
+        winding_angle=None if winding_angle is None else math.radians(winding_angle),
     )
     check_outputs([json_out, plot_out], _material_files(materials) + ([sizes] if sizes else []))
     bar = _LazyProgress()
@@ -190,6 +196,7 @@ def size_command(
     finally:
         bar.close()
     report = size_report(result, name=option_phrase, cp_hint="`cmcheck predict --cp`", safety=p is not None,
+                         sizes_hint="add your own with --sizes FILE, or search only them with --no-builtin-sizes",
                          check=_predict_command(result.designs[0], band, conductor) if result.designs else None)
     # Files first: a closed pipe (| head) must not cost the user the JSON or the plot.
     write_report(report, json=json_out, plot=plot_out)

@@ -20,17 +20,18 @@ from __future__ import annotations
 
 import math
 import time
+import warnings
 from dataclasses import dataclass, field
 from typing import Callable, Sequence
 
 import numpy as np
 
 from ..model.choke import ChokeDesign, air_core_inductance, choke_impedance, predict
-from ..model.capacitance import segment_arrays, stray_capacitance_segments
+from ..model.winding_cp import candidates_cp, cp_material, unknown_class_message
 from ..model.conductors import Conductor
 from ..model.cores import Core
-from ..errors import DesignError
-from ..model.materials import Material
+from ..errors import CmcheckWarning, DesignError
+from ..model.materials import Material, purchase_label
 from .catalogue import CoreSizes, RingSizes, bend_radius, builtin_ring_sizes, load_ring_sizes
 from .diagnosis import Diagnosis, SearchContext, diagnose, diagnose_heat, diagnose_nothing_fits, format_rise
 from .heat import DEFAULT_MAX_RISE_K, Drive, heat_check
@@ -39,22 +40,9 @@ from ..units import Band
 from ..model.winding import Winding, max_turns_single_layer
 
 __all__ = [
-    "CoreSizes",
-    "DEFAULT_BEND_RATIO",
-    "DEFAULT_MAX_CORES",
-    "DEFAULT_TARGET_OHM",
-    "Diagnosis",
-    "RingSizes",
-    "SizeResult",
-    "SizeSpec",
-    "SizedDesign",
-    "bend_radius",
-    "builtin_ring_sizes",
-    "candidate_geometry",
-    "format_rise",
-    "load_ring_sizes",
-    "scan_candidates",
-    "size",
+    "CoreSizes", "DEFAULT_BEND_RATIO", "DEFAULT_MAX_CORES", "DEFAULT_TARGET_OHM", "Diagnosis", "RingSizes",
+    "SizeResult", "SizeSpec", "SizedDesign", "bend_radius", "builtin_ring_sizes", "candidate_geometry",
+    "format_rise", "load_ring_sizes", "scan_candidates", "size",
 ]
 
 #: Smallest bend radius of a cable wound through a core, as a multiple of its outside
@@ -76,9 +64,7 @@ DEFAULT_MAX_CORES = 4  # common practice, no published source
 _CHUNK_POINTS = 400_000
 
 
-# ---------------------------------------------------------------------------------------------
-# Specification (the results, SizedDesign and SizeResult, are in .sized)
-# ---------------------------------------------------------------------------------------------
+# The specification; the results, SizedDesign and SizeResult, are in .sized.
 
 
 @dataclass(frozen=True, eq=False)
@@ -105,7 +91,7 @@ class SizeSpec:
         Smallest allowed bend radius of a cable for two or more turns [m]; default
         ``DEFAULT_BEND_RATIO`` × OD for a stiff conductor (cable); wire is not limited unless given.
     cp_factor : float
-        Multiplies the single-layer Cp estimate (≥ 1 for a pessimistic self-resonance).
+        Multiplies the energy-method Cp estimate (≥ 1 for a pessimistic self-resonance).
     points : int
         Grid points over the band, as ``predict``'s ``points`` (edges added).
     top : int
@@ -116,6 +102,16 @@ class SizeSpec:
         Designs whose estimated temperature rise exceeds this are dropped [K].
     keep_hot : bool
         List designs above ``max_rise_k`` anyway, flagged ``too_hot``, instead of dropping them.
+    winding_angle : float, optional
+        Angle every winding spans round its core [rad] for the Cp estimate; None: spread over
+        300° (close-wound where the turns fill more), as :class:`ChokeDesign`.
+    cp : float, optional
+        One stray capacitance for every candidate [F] (a measured value; tests pin it so a
+        better Cp model moves no search test); None: the energy-method estimate per design.
+        ``cp_factor`` scales either.
+    material_series : str
+        The ISO 3 series the family members among ``materials`` were taken from, for naming
+        what to buy (:func:`cmcheck.model.materials.purchase_label`).
     """
 
     band: Band
@@ -133,6 +129,9 @@ class SizeSpec:
     drive: Drive | None = None
     max_rise_k: float = DEFAULT_MAX_RISE_K
     keep_hot: bool = False
+    winding_angle: float | None = None
+    cp: float | None = None
+    material_series: str = "R10"
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "materials", tuple(self.materials))
@@ -160,6 +159,11 @@ class SizeSpec:
             raise DesignError(f"points must be at least 2, got {self.points!r}", parameter="points")
         if not (isinstance(self.top, (int, np.integer)) and self.top >= 1):
             raise DesignError(f"top must be a whole number ≥ 1, got {self.top!r}", parameter="top")
+        if self.cp is not None and not (math.isfinite(self.cp) and self.cp >= 0):
+            raise DesignError(f"cp must be ≥ 0 F, got {self.cp!r}", parameter="cp")
+        if self.winding_angle is not None and not (0 < self.winding_angle < 2 * math.pi):
+            raise DesignError(f"winding_angle must lie between 0 and 2π rad, got {self.winding_angle!r}",
+                              parameter="winding_angle")
         if not (math.isfinite(self.max_rise_k) and self.max_rise_k > 0):
             raise DesignError(f"max_rise_k must be above 0 K, got {self.max_rise_k:g} K", parameter="max_rise_k")
 
@@ -175,11 +179,6 @@ class SizeSpec:
         return "R" if self.criterion == "resistance" else "|Z|"
 
 
-# ---------------------------------------------------------------------------------------------
-# The search
-# ---------------------------------------------------------------------------------------------
-
-
 @dataclass(frozen=True, eq=False)
 class _Geometry:
     """Per core-and-turns combination (shared by all materials), arrays of length G."""
@@ -189,7 +188,7 @@ class _Geometry:
     turns: np.ndarray
     n_fit: np.ndarray
     l0: np.ndarray
-    cp: np.ndarray
+    cp: np.ndarray  # (materials, G): Cp depends on the material's electrical class and εr
     length: np.ndarray
     ae: np.ndarray
     area: np.ndarray
@@ -239,16 +238,12 @@ def _geometry(spec: SizeSpec, *, turns_factor: float = 1.0, limits: bool = True)
     base = np.repeat(np.flatnonzero(keep), counts)
     starts = np.repeat(np.cumsum(counts) - counts, counts)
     turns = (np.arange(base.size) - starts + 1).astype(int)
-    # Turn geometry of every kept stack as padded segment arrays (a shape without one: no
-    # segments, so no Cp, as ChokeDesign.cp gives 0 for it).
+    # Energy-method Cp of every winding at once, per material (its electrical class and εr).
     geoms = [cores[i].turn_geometry(d_out) for i in np.flatnonzero(keep)]
-    seg = segment_arrays([g for g in geoms if g is not None])
-    lens, p0, p1 = (np.zeros((len(geoms), seg[0].shape[1])) for _ in range(3))
-    has = np.array([g is not None for g in geoms], bool)
-    lens[has], p0[has], p1[has] = seg
-    row = np.repeat(np.arange(len(geoms)), counts)
-    cp = np.atleast_1d(stray_capacitance_segments(lens[row], p0[row], p1[row], d_out, cond.conducting_diameter, turns,
-                                                  cond.effective_eps_r))
+    cp = candidates_cp(geoms, np.repeat(np.arange(len(geoms)), counts), turns, cond, spec.materials,
+                       spec.winding_angle)
+    if spec.cp is not None:
+        cp[:] = spec.cp
     s_idx, stack, n_fit, bend = s_idx[base], stack[base], n_fit[base], bend[base]
     geo = _Geometry(
         size_idx=s_idx, stack=stack, turns=turns, n_fit=n_fit,
@@ -288,7 +283,7 @@ def _scan(spec: SizeSpec, geo: _Geometry, f: np.ndarray, mus: Sequence[np.ndarra
     for m, mu in enumerate(mus):
         for a in range(0, G, rows):
             b = min(a + rows, G)
-            z = choke_impedance(f, geo.l0[a:b, None], mu, geo.length[a:b, None] * r_per_m, geo.cp[a:b, None])
+            z = choke_impedance(f, geo.l0[a:b, None], mu, geo.length[a:b, None] * r_per_m, geo.cp[m, a:b, None])
             metric = z.real if use_r else np.abs(z)
             v_min = metric.min(axis=1)
             k = int(np.argmax(v_min))
@@ -351,6 +346,9 @@ def size(spec: SizeSpec, progress: Callable[[int, int], None] | None = None) -> 
     :mod:`cmcheck.design.heat` (McLyman, 3rd ed., ch. 6).
     """
     t0 = time.perf_counter()
+    for mat in spec.materials:
+        if spec.cp is None and cp_material(mat).assumed:
+            warnings.warn(CmcheckWarning(unknown_class_message(mat.name), parameter="materials"), stacklevel=2)
     band = spec.band
     f_grid = band.grid(spec.points)
     f = f_grid[band.contains(f_grid)]
@@ -454,8 +452,9 @@ def _short_list(spec, geo, mat, g, r_min, r_hz, x_min, x_hz, margin, heat) -> tu
 def _design(spec: SizeSpec, geo: _Geometry, m: int, g: int) -> ChokeDesign:
     core = spec.sizes.cores[int(geo.size_idx[g])].stacked(int(geo.stack[g]))
     # With the plain estimate, leave Cp to the model (as predict would); a scaled one is given.
-    cp = None if spec.cp_factor == 1.0 else float(geo.cp[g])
-    return ChokeDesign(core, spec.materials[m], Winding(int(geo.turns[g]), spec.conductor, cp))
+    cp = None if spec.cp_factor == 1.0 and spec.cp is None else float(geo.cp[m, g])
+    return ChokeDesign(core, spec.materials[m], Winding(int(geo.turns[g]), spec.conductor, cp),
+                       winding_angle=spec.winding_angle)
 
 
 def _make(spec, geo, m, g, r_min, r_hz, x_min, x_hz, margin, heat) -> SizedDesign:
@@ -463,15 +462,29 @@ def _make(spec, geo, m, g, r_min, r_hz, x_min, x_hz, margin, heat) -> SizedDesig
     return SizedDesign(
         design=design, kind=spec.sizes.kind[int(geo.size_idx[g])], min_resistance_ohm=r_min, min_resistance_hz=r_hz,
         min_impedance_ohm=x_min, min_impedance_hz=x_hz, margin=margin, max_turns_fit=int(geo.n_fit[g]),
-        bend_radius_m=float(geo.bend[g]), prediction=predict(design, spec.band, spec.points), heat=heat,
+        bend_radius_m=float(geo.bend[g]), prediction=_predict_quietly(design, spec), heat=heat,
+        cp_source=_cp_source(spec), buy=purchase_label(spec.materials[m], spec.material_series),
     )
+
+
+def _predict_quietly(design: ChokeDesign, spec: SizeSpec):
+    with warnings.catch_warnings():  # size() has warned once per material of unknown class
+        warnings.filterwarnings("ignore", message=".*does not declare its electrical class", category=CmcheckWarning)
+        return predict(design, spec.band, spec.points)
+
+
+def _cp_source(spec: SizeSpec) -> str | None:
+    """How the search's Cp differs from ChokeDesign's own estimate, or None when it does not."""
+    if spec.cp is not None:
+        return "given" if spec.cp_factor == 1.0 else "given, scaled by cp_factor"
+    return None if spec.cp_factor == 1.0 else "estimated (energy method), scaled by cp_factor"
 
 
 def _single(spec: SizeSpec, geo: _Geometry, m: int, g: int, f: np.ndarray) -> SizedDesign:
     """One candidate evaluated in full (the closest design), heat included."""
-    one = _Geometry(**{k: v[[g]] for k, v in geo.__dict__.items()})
+    one = _Geometry(**{k: (v[:, [g]] if v.ndim == 2 else v[[g]]) for k, v in geo.__dict__.items()})
     mu = np.asarray(spec.materials[m].permeability(f), complex)
-    z = choke_impedance(f, one.l0[:, None], mu, one.length[:, None] * spec.conductor.resistance(f, 1.0), one.cp[:, None])
+    z = choke_impedance(f, one.l0[:, None], mu, one.length[:, None] * spec.conductor.resistance(f, 1.0), one.cp[m][:, None])
     r_min, r_hz = _minimum(z.real, f)
     x_min, x_hz = _minimum(np.abs(z), f)
     v = r_min[0] if spec.criterion == "resistance" else x_min[0]

@@ -36,6 +36,8 @@ class SizedDesign:
     bend_radius_m: float
     prediction: Prediction
     heat: dict | None = None
+    cp_source: str | None = None
+    buy: str = ""
 
     @property
     def core(self) -> Core:
@@ -64,9 +66,10 @@ class SizedDesign:
             core_surface_m2=self.core.surface_area,
             max_turns_one_layer=self.max_turns_fit,
             bend_radius_m=self.bend_radius_m,
+            buy=self.buy or self.design.material.name,
         )
-        if self.design.cp_source == "given":
-            d["cp_source"] = "estimated, scaled by cp_factor"
+        if self.cp_source is not None:
+            d["cp_source"] = self.cp_source
         if self.heat is not None:
             d.update(self.heat)
         return d
@@ -127,6 +130,8 @@ class SizeResult:
             "design_space": self.space,
             "min_bend_radius_m": s.bend_limit,
             "cp_factor": s.cp_factor,
+            "size_series": s.sizes.series,
+            "material_series": s.material_series,
             "max_rise_k": s.max_rise_k if s.drive else None,
             "drive": s.drive.to_dict() if s.drive else None,
         }

@@ -13,14 +13,14 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .capacitance import stray_capacitance
 from .cores import Core
 from ..curve import ImpedanceCurve, resistive_ranges, self_resonance
-from ..errors import CmcheckWarning
+from ..errors import CmcheckWarning, WindingError
 from .materials import Material
 from ..units import Band
 from .conductors import MU0
 from .winding import Winding, check_fit
+from .winding_cp import cp_material, design_self_capacitance, unknown_class_message
 
 
 __all__ = [
@@ -142,12 +142,21 @@ class ChokeDesign:
     turn_length : float, optional
         Length of one turn [m], overriding the core's own (needed for the conductor resistance
         of a :class:`~cmcheck.model.cores.FactorCore` without ``turn_path``).
+    winding_angle : float, optional
+        Angle the winding spans round the core, first to last turn [rad], for the Cp estimate;
+        None: spread over 300° (or close-wound where the turns fill more).
     """
 
     core: Core
     material: Material
     winding: Winding
     turn_length: float | None = None
+    winding_angle: float | None = None
+
+    def __post_init__(self) -> None:
+        a = self.winding_angle
+        if a is not None and not (isinstance(a, (int, float)) and 0 < a < 2 * math.pi):
+            raise WindingError(f"winding_angle must lie between 0 and 2π rad, got {a!r}", parameter="winding_angle")
 
     @property
     def l0(self) -> float:
@@ -174,23 +183,37 @@ class ChokeDesign:
         return None if d is None else check_fit(d, self.winding)
 
     @property
+    def cp_parts(self):
+        """The estimated Cp's parts (:class:`~cmcheck.model.selfcapacitance.SelfCapacitance`), or None
+        without a turn geometry (:func:`cmcheck.model.winding_cp.design_self_capacitance`)."""
+        return design_self_capacitance(self.core, self.winding.conductor, self.winding.turns, self.material,
+                                       self.winding_angle)
+
+    @property
     def cp(self) -> float:
-        """Stray capacitance used [F]: the given one, else the single-layer estimate."""
+        """Stray capacitance used [F]: the given one, else the energy-method estimate."""
         if self.winding.cp is not None:
             return self.winding.cp
-        c = self.winding.conductor
-        geometry = self.core.turn_geometry(c.outer_diameter)
-        if geometry is None:
-            return 0.0  # no geometry to estimate from; predict() warns, naming what is missing
-        return stray_capacitance(geometry, c.outer_diameter, c.conducting_diameter, self.winding.turns,
-                                 c.effective_eps_r)
+        parts = self.cp_parts
+        # No geometry to estimate from: 0, and predict() warns naming what is missing.
+        return 0.0 if parts is None else float(parts.total)
+
+    @property
+    def cp_assumed_class(self) -> bool:
+        """True when Cp is estimated for a material that does not declare its electrical class."""
+        return self.cp_source.startswith("estimated") and cp_material(self.material).assumed
 
     @property
     def cp_source(self) -> str:
-        """How Cp was obtained: ``given``, ``estimated`` or ``none``."""
+        """How Cp was obtained: ``given``, ``estimated (energy method, …)`` or ``none``."""
         if self.winding.cp is not None:
             return "given"
-        return "none" if self.core.turn_geometry(self.winding.conductor.outer_diameter) is None else "estimated"
+        parts = self.cp_parts
+        if parts is None:
+            return "none"
+        spread = "angle given" if self.winding_angle is not None else "default spread"
+        return (f"estimated (energy method, {cp_material(self.material).describe()}, "
+                f"winding over {math.degrees(float(parts.winding_angle)):.0f}° ({spread}))")
 
     def conductor_resistance(self, frequency_hz) -> np.ndarray:
         """AC resistance of the conductor [Ω]; zero when its length is unknown."""
@@ -221,6 +244,15 @@ class ChokeDesign:
             f"{self.winding.conductor.describe()} on {self.core.describe()}, {self.material.name}"
         )
 
+    def cp_breakdown(self) -> dict | None:
+        """The estimated Cp's parts [F] and winding angle [rad] as a dict; None when Cp is given or unknown."""
+        parts = None if self.winding.cp is not None else self.cp_parts
+        if parts is None:
+            return None
+        d = {k: float(getattr(parts, k)) for k in ("gap", "air", "chain", "core", "leads")}
+        d["winding_angle_rad"] = float(parts.winding_angle)
+        return d
+
     def to_dict(self) -> dict:
         """JSON-ready description of the design (SI units)."""
         d: dict = {"material": self.material.name, "turns": self.winding.turns}
@@ -229,6 +261,7 @@ class ChokeDesign:
         d.update(
             cp_f=self.cp,
             cp_source=self.cp_source,
+            cp_parts_f=self.cp_breakdown(),
             l0_h=self.l0,
             low_frequency_inductance_h=self.low_frequency_inductance(),
             turn_length_m=self.mean_turn_length,
@@ -325,6 +358,8 @@ def predict(design: ChokeDesign, band: Band, points: int = 201) -> Prediction:
                            "the model has no self-resonance unless cp is given", parameter="cp"),
             stacklevel=2,
         )
+    if design.cp_assumed_class:
+        warnings.warn(CmcheckWarning(unknown_class_message(design.material.name), parameter="material"), stacklevel=2)
     f = band.grid(points)
     curve = design.curve(f)
     inside = band.contains(f)
@@ -346,6 +381,7 @@ def predict(design: ChokeDesign, band: Band, points: int = 201) -> Prediction:
         "low_frequency_inductance_h": design.low_frequency_inductance(),
         "cp_f": design.cp,
         "cp_source": design.cp_source,
+        "cp_parts_f": design.cp_breakdown(),
         "max_turns_one_layer": max_turns,
         "conductor_length_m": design.conductor_length,
     }

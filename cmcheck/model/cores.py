@@ -405,8 +405,8 @@ class FactorCore:
     With ``window_diameter`` and ``turn_path`` given, the turn length and the stray-capacitance
     estimate use an *equivalent ring*: inside diameter = the window, a square section whose
     perimeter is the turn path (side p/4). Common practice, no published source: the square is
-    the middle ground between flat and tall sections, and the single-layer estimate is a first
-    estimate anyway.
+    the middle ground between flat and tall sections; the Cp estimate (energy method) reads it
+    like a ring.
     """
 
     c1: float

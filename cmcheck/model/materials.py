@@ -44,6 +44,7 @@ __all__ = [
     "load_material_csv",
     "purchase_label",
     "save_material_csv",
+    "search_materials",
     "two_component_permeability",
 ]
 
@@ -236,6 +237,54 @@ def builtin_materials() -> dict[str, Material]:
     member within a family's range (``nizn-650``), not only these.
     """
     return {m.name: m for fam in builtin_families().values() for m in family_grid(fam, LISTING_SERIES)}
+
+
+#: The series, families and µi ranges the sizing search explores by default. R10 (about 25 %
+#: steps) is finer than the spread of a bought core's µi (±20–25 %, from memory), so a finer
+#: grid would not change what to buy. NiZn (µi 40–2000) is the usual choke ferrite from HF to
+#: VHF; MnZn (µi 500–5000) suits the low HF bands (above µi ≈ 5000 it relaxes below 1 MHz by
+#: Snoek's law); iron powder (µi ≤ 100) is a low-loss inductor material whose resistive part is
+#: small, so it is searched only when asked for. Common practice, no published source.
+SEARCH_SERIES = "R10"
+SEARCH_FAMILIES = {"nizn": (40.0, 2000.0), "mnzn": (500.0, 5000.0)}
+#: Ranges for the families a user names (``--materials iron-powder``) without a default range.
+_SEARCH_RANGES = {**SEARCH_FAMILIES, "iron-powder": (4.0, 100.0)}
+
+
+def search_materials(names=None, series: str = SEARCH_SERIES) -> list[Material]:
+    """Materials for the sizing search: family grids and/or named materials.
+
+    Parameters
+    ----------
+    names : sequence of str, optional
+        Each a family key (``"nizn"``, ``"mnzn"``, ``"iron-powder"``: its grid on ``series``
+        within its choke range), a member (``"nizn-650"``) or a CSV file. None: the grids of
+        :data:`SEARCH_FAMILIES`.
+    series : str
+        ISO 3 series of the grids (:func:`cmcheck.model.families.preferred_numbers`).
+
+    Returns
+    -------
+    list of Material
+        In the order given; a member a family grid already holds is not repeated, but a name
+        given twice stays twice (the search refuses it).
+    """
+    from .families import preferred_numbers
+
+    fams = builtin_families()
+    out: list[Material] = []
+    for name in (list(SEARCH_FAMILIES) if names is None else names):
+        key = str(name).strip().lower()
+        if key in fams:
+            fam = fams[key]
+            lo, hi = _SEARCH_RANGES.get(key, fam.mu_range)
+            for mu in preferred_numbers(max(lo, fam.mu_range[0]), min(hi, fam.mu_range[1]), series):
+                m = family_material(fam, mu)
+                if all(m.name != o.name for o in out):
+                    out.append(m)
+        else:
+            out.append(get_material(name))
+    return out
 
 
 _CLASS_COMMENT = re.compile(r"^class\s*[:=]\s*(\S+)\s*$", re.IGNORECASE)

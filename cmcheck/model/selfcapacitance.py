@@ -16,7 +16,8 @@ that part stores, and the parts add (the terminal capacitance Cp is their sum):
 
 Everything is SI (metres, farads, radians). Pure functions, vectorised over arrays of equal or
 broadcastable shape; :func:`self_capacitance` returns all parts in one frozen record so a
-report can show the breakdown. Not yet used by the choke model.
+report can show the breakdown. The choke model and the sizing search use it through
+:mod:`cmcheck.model.winding_cp`.
 """
 
 from __future__ import annotations

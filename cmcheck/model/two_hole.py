@@ -72,9 +72,11 @@ class TwoHoleCore:
 
     Turn path: a rectangle round the web, (spacing − hole) across and length along, corners
     rounded by the conductor radius: 2·(length + spacing − hole) + π·d (as on a ring). Bend:
-    round the narrower side of the web. Cp: the turns spread round each hole's wall,
-    π(hole − d), and keep that spread across the end faces (the turns do not fan out as on a
-    ring's faces).
+    round the narrower side of the web. Cp (energy method, :mod:`cmcheck.model.winding_cp`): the
+    two equivalent rings every turn passes through, side by side as one ring of twice the
+    height, as for C1. The turn geometry's segments (turns spread round each hole's wall,
+    π(hole − d), keeping that spread across the end faces) serve the former adjacent-turn
+    estimate.
     """
 
     width: float

@@ -70,6 +70,12 @@ def prediction_report(result: Prediction, rows: int = 16) -> Report:
         Text(title, bold=True),
         Text("  core: " + ", ".join(core_info)),
         Text("  winding: " + ", ".join(wind_info)),
+    ]
+    parts = s.get("cp_parts_f")
+    if parts:
+        body.append(Text("  Cp parts: " + ", ".join(f"{k} {format_quantity(parts[k], 'F')}" for k in
+                                                     ("gap", "air", "chain", "core", "leads"))))
+    body += [
         shown,
         Text(f"band {band}: min R = {s['min_resistance_ohm']:,.1f} Ω at "
              f"{format_quantity(s['min_resistance_hz'], 'Hz', digits)}, max R = {s['max_resistance_ohm']:,.1f} Ω at "

@@ -30,6 +30,7 @@ def size_report(
     check: str | None = None,
     cp_hint: str = "give it as the winding's cp",
     safety: bool | None = None,
+    sizes_hint: str = "give your own table as sizes (a CSV file)",
 ) -> Report:
     """The report of a sizing search.
 
@@ -45,6 +46,8 @@ def size_report(
         How to give a measured Cp (in the note on self-resonance).
     safety : bool, optional
         Add the safety notes on power (default: when the search had a drive).
+    sizes_hint : str
+        How to give one's own core sizes (after the line naming the size series searched).
     """
     s = result.spec
     cond = s.conductor
@@ -58,6 +61,7 @@ def size_report(
         f"{result.meeting_target:,} meet the target"
         + ((f", {result.too_hot:,} of them warmer than {s.max_rise_k:g} K" if result.too_hot
             else f", none warmer than {s.max_rise_k:g} K") if s.drive and result.meeting_target else ""))]
+    body.append(Text(f"core sizes: {s.sizes.series or 'unnamed table'}; {sizes_hint}"))
     if s.drive is not None:
         body.append(Text(f"heat: {s.drive.describe()}"))
     json = result.to_dict()
@@ -95,10 +99,12 @@ def size_report(
                        Cell(d.heat["temperature_rise_k"], " too hot" if d.heat["too_hot"] else ""),
                        d.heat["peak_flux_density_t"], d.heat["peak_flux_hz"]) for i, d in enumerate(designs, 1)]
             body.append(Table(h_cols, tuple(h_rows), title="heat"))
+        body.append(Text("buy: " + "; ".join(f"#{i} {d.buy or d.design.material.name}" for i, d in enumerate(designs, 1))))
         if check:
             body.append(Text(f"check #1 in full: {check}"))
-        notes.append("SRF uses the single-layer Cp estimate; real windings and leads often add more: measure, then "
-                     f"{cp_hint}. Conductor length is for the turns only: add the leads.")
+        notes.append("SRF uses Cp estimated by the energy method from the geometry and the material's electrical class "
+                     f"(turns spread over 300° unless given); measure it where you can, then {cp_hint}. "
+                     "Conductor length is for the turns only: add the leads.")
         if s.drive is not None:
             notes.append("ΔT from McLyman's still-air surface formula (empirical; a fan or an enclosure changes it).")
     else:
