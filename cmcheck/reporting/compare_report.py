@@ -15,8 +15,8 @@ def comparison_report(result: Comparison, *, generic: str) -> Report:
     b = result.band
     title = f"{generic}, over {b}"
     cols = (Column("rank", "#", "", "int", "int"), Column("material", "material"),
-            Column("min_resistance_ohm", "min R [Ω]", "Ω", ",.0f", ".6g"), Column("min_resistance_hz", "at", "Hz", "hz3", ".6g"),
-            Column("mean_resistance_ohm", "mean R [Ω]", "Ω", ",.0f", ".6g"),
+            Column("min_resistance_ohm", "min R [Ω]", "Ω", "num", ".6g"), Column("min_resistance_hz", "at", "Hz", "hz3", ".6g"),
+            Column("mean_resistance_ohm", "mean R [Ω]", "Ω", "num", ".6g"),
             Column("peak_resistance_hz", "peak R at", "Hz", "hz3", ".6g"),
             Column("resistive_fraction", "R>|X| [%]", "", "percent", ".4g"),
             Column("worst_case_reduction_db", "worst cut [dB]", "dB", "+.1f", ".4g"),

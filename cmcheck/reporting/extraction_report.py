@@ -13,6 +13,7 @@ from ..measurement.qa import FileResult, Limits, result_to_dict
 from ..units import format_quantity
 from .choke_report import table_indices
 from .files import SAFETY_NOTES
+from .numbers import format_number
 from .results import Column, Figure, Report, Series, Table, Text
 
 __all__ = ["extraction_report", "MAX_REASONS", "MAX_PLOTTED"]
@@ -38,9 +39,7 @@ _METHOD_NAMES = {"series": "series-through", "shunt": "shunt-through", "reflect"
 
 
 def _num(v) -> str:
-    if v is None or not np.isfinite(v):
-        return "–"
-    return f"{v:,.0f}" if abs(v) >= 1e4 else f"{v:.4g}"
+    return format_number(v)
 
 
 def _hz(v) -> str:

@@ -8,6 +8,7 @@ from ..design.diagnosis import Remedy, format_rise
 from ..design.search import SizeResult
 from ..units import format_quantity
 from .files import SAFETY_NOTES
+from .numbers import format_number
 from .results import Cell, Column, Figure, Report, Table, Text
 
 __all__ = ["context_curve", "size_report"]
@@ -70,7 +71,7 @@ def size_report(
         key = "min_resistance_ohm" if by_r else "min_impedance_ohm"
         cols = (Column("rank", "#", "", "int", "int"), Column("material", "material"),
                 Column("core", "n × OD×ID×H [mm]"), Column("turns", "turns", "", "int", "int"),
-                Column(key, f"min {s.metric_name} [Ω]", "Ω", ",.0f", ".6g"),
+                Column(key, f"min {s.metric_name} [Ω]", "Ω", "num", ".6g"),
                 Column(key.replace("_ohm", "_hz"), "at", "Hz", "hz3", ".6g"),
                 Column("margin", "margin", "", "margin", ".4g"),
                 Column("self_resonance_hz", "SRF", "Hz", "hz3", ".6g"),
@@ -108,7 +109,7 @@ def size_report(
             v = c.min_resistance_ohm if by_r else c.min_impedance_ohm
             hz = c.min_resistance_hz if by_r else c.min_impedance_hz
             srf = format_quantity(c.self_resonance_hz, "Hz", 3) if c.self_resonance_hz else "none found"
-            line = (f"closest: {c.design.describe()}: min {s.metric_name} {v:,.0f} Ω at {format_quantity(hz, 'Hz', 3)} "
+            line = (f"closest: {c.design.describe()}: min {s.metric_name} {format_number(v)} Ω at {format_quantity(hz, 'Hz', 3)} "
                     f"({c.margin * 100:.0f} % of target), SRF {srf}")
             if c.heat is not None:
                 line += (f", {c.heat['dissipation_w']:.3g} W → ΔT {format_rise(c.heat['temperature_rise_k'])}, "
