@@ -86,6 +86,7 @@ def prediction_report(result: Prediction, rows: int = 16) -> Report:
         body=tuple(body),
         json=result.to_dict(),
         data={"curve": curve_table(curve, (title, "predicted by cmcheck (model estimate, not a measurement)"))},
-        figures=(Figure("impedance", title=title, curves=(curve,), band=band),),
+        figures=(Figure("impedance", title=title, curves=(curve,), band=band,
+                        markers=((srf, f"self-resonance {format_quantity(srf, 'Hz')}"),) if srf else ()),),
         notes=SAFETY_NOTES[:1],
     )

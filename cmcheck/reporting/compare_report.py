@@ -48,6 +48,6 @@ def comparison_report(result: Comparison, *, generic: str) -> Report:
     notes.append(SAFETY_NOTES[0])
     return Report(title=title, inputs={"band": str(b), "materials": [s.name for s in result.scores]},
                   body=tuple(body), json=result.to_dict(), data={"designs": designs},
-                  figures=(Figure("impedance", curves=tuple(comparison_curves(result)), band=b, quantities=("R",),
-                                  title=f"R(f): {generic}"),),
+                  figures=(Figure("impedance", curves=tuple(comparison_curves(result)), band=b, quantities=("R", "|X|"),
+                                  title=f"R and |X| per material: {generic}"),),
                   notes=tuple(notes))
