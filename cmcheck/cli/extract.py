@@ -95,6 +95,7 @@ def extract(
     json_out: o.JsonOut = None,
     csv_out: o.CsvOut = None,
     plot_out: o.PlotOut = None,
+    html_out: o.HtmlOut = None,
     vs_model: Annotated[bool, typer.Option("--vs-model", help="Compare with the model of the design given by the design options.", rich_help_panel=o.DESIGN_PANEL)] = False,
     design_options: dict = None,
 ) -> None:
@@ -133,7 +134,7 @@ def extract(
     material = design_options["material"]
     if material and Path(material).is_file():
         inputs.append(material)
-    check_outputs([json_out, csv_out, plot_out, summary_out], inputs)
+    check_outputs([json_out, csv_out, plot_out, summary_out, html_out], inputs)
 
     fixture = None
     if open_file is not None:
@@ -152,7 +153,8 @@ def extract(
     report = extraction_report(results, limits, accuracy, rows=rows, models=models, design=design,
                                more_option="--summary")
     # Files first, all or none: a closed pipe (| head) must not cost the user the results.
-    write_report(report, json=json_out, csv={"long": csv_out, "summary": summary_out}, plot=plot_out)
+    write_report(report, json=json_out, csv={"long": csv_out, "summary": summary_out}, plot=plot_out,
+                 html=html_out)
     show(report)
     raise typer.Exit(exit_status(results))
 

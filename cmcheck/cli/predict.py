@@ -29,6 +29,7 @@ def predict(
     json_out: o.JsonOut = None,
     csv_out: o.CsvOut = None,
     plot_out: o.PlotOut = None,
+    html_out: o.HtmlOut = None,
     touchstone_out: Annotated[
         Optional[Path],
         typer.Option("--touchstone", help="Write the choke as a series two-port .s2p (50 Ω) file.", rich_help_panel=o.OUTPUT_PANEL),
@@ -46,10 +47,11 @@ def predict(
     b = o.band_from_option(band)
     material = design_options["material"]
     inputs = [material] if material and Path(material).is_file() else []
-    check_outputs([json_out, csv_out, plot_out, touchstone_out], inputs)
+    check_outputs([json_out, csv_out, plot_out, touchstone_out, html_out], inputs)
     report = prediction_report(predict_choke(design, b, points), rows)
     # Files first, all or none: a closed pipe (| head) must not cost the user the results.
-    write_report(report, json=json_out, csv={"curve": csv_out}, plot=plot_out, touchstone=touchstone_out)
+    write_report(report, json=json_out, csv={"curve": csv_out}, plot=plot_out, touchstone=touchstone_out,
+                 html=html_out)
     show(report)
 
 
