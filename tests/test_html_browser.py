@@ -79,7 +79,14 @@ _PROBE = """<script>
 window.addEventListener('load', function () {
   var out = [];
   document.querySelectorAll('img').forEach(function (im) {
-    out.push([im.complete, im.naturalWidth, im.naturalHeight]);
+    // Decoded pixels, not only the header's size: count the dark ones (lines, text).
+    var c = document.createElement('canvas');
+    c.width = im.naturalWidth; c.height = im.naturalHeight;
+    var g = c.getContext('2d');
+    g.drawImage(im, 0, 0);
+    var d = g.getImageData(0, 0, c.width || 1, c.height || 1).data, dark = 0;
+    for (var i = 0; i < d.length; i += 4) { if (d[i + 3] > 0 && d[i] + d[i + 1] + d[i + 2] < 384) dark++; }
+    out.push([im.complete, im.naturalWidth, im.naturalHeight, dark / (d.length / 4)]);
   });
   var pre = document.createElement('pre');
   pre.id = 'probe';
@@ -103,8 +110,9 @@ def test_every_image_renders(page):
     assert found, dom[-500:]
     images = json.loads(found.group(1))
     assert len(images) == n_img
-    for complete, width, height in images:
+    for complete, width, height, dark in images:
         assert complete and width > 300 and height > 200
+        assert dark > 0.005, "an image decoded blank"
 
 
 def _page_requests(netlog: Path) -> list[str]:
