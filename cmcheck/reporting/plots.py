@@ -41,7 +41,7 @@ _STYLE = {
     "font.size": 9, "axes.titlesize": 10, "axes.labelsize": 9, "legend.fontsize": 8,
     "axes.spines.top": False, "axes.spines.right": False, "axes.edgecolor": "#555555",
     "axes.grid": True, "grid.color": "#dddddd", "grid.linewidth": 0.6, "axes.axisbelow": True,
-    "lines.linewidth": 1.5, "legend.frameon": False, "svg.fonttype": "path", "savefig.dpi": 120,
+    "lines.linewidth": 1.5, "legend.frameon": False, "svg.fonttype": "path", "svg.hashsalt": "cmcheck", "savefig.dpi": 120,
     "figure.facecolor": "white", "axes.facecolor": "white", "pdf.fonttype": 42,
 }
 #: Legend entries beyond which the legend moves beside the axes.
