@@ -161,3 +161,10 @@ def test_frequency_unit_follows_the_span():
 def test_figure_bytes_are_reproducible():
     fig = Figure("impedance", curves=(_curve(),))
     assert figure_bytes(fig, "svg") == figure_bytes(fig, "svg")
+
+
+def test_version_option_prints_the_package_version(run_cli):
+    from importlib.metadata import version
+
+    code, out, err = run_cli("--version")
+    assert code == 0 and out.strip() == f"cmcheck {version('cmcheck')}"

@@ -191,6 +191,8 @@ def _impedance(fig, figure: Figure) -> None:
 def _series(fig, figure: Figure) -> None:
     panels = [(figure.y_label, figure.series)] + list(figure.panels)
     names, common = short_labels([s.label for s in figure.series])
+    if len(names) == 1:
+        names = [os.path.basename(names[0]) or names[0]]  # the title says where it came from
     axes = []
     for k, (ylabel, group) in enumerate(panels):
         ax = fig.add_subplot(len(panels), 1, k + 1, sharex=axes[0] if axes else None)
