@@ -168,3 +168,13 @@ def test_version_option_prints_the_package_version(run_cli):
 
     code, out, err = run_cli("--version")
     assert code == 0 and out.strip() == f"cmcheck {version('cmcheck')}"
+
+
+def test_each_curves_self_resonance_is_marked():
+    from cmcheck.curve import self_resonance
+
+    c = _curve(label="a")
+    f0 = float(self_resonance(c.frequency_hz, c.z)[0])
+    texts = _legend_texts(Figure("impedance", curves=(c, _curve(label="b")), quantities=("R",), resonances=(f0, None)))
+    assert "self-resonance" in texts
+    assert "self-resonance" not in _legend_texts(Figure("impedance", curves=(c,), quantities=("R",)))

@@ -49,5 +49,6 @@ def comparison_report(result: Comparison, *, generic: str) -> Report:
     return Report(title=title, inputs={"band": str(b), "materials": [s.name for s in result.scores]},
                   body=tuple(body), json=result.to_dict(), data={"designs": designs},
                   figures=(Figure("impedance", curves=tuple(comparison_curves(result)), band=b, quantities=("R", "|X|"),
+                                  resonances=tuple(s.prediction.summary["self_resonance_hz"] for s in result.scores),
                                   title=f"R and |X| per material: {generic}"),),
                   notes=tuple(notes))

@@ -177,6 +177,7 @@ def _impedance(fig, figure: Figure) -> None:
             label = (f"{names[i]} {q}" if len(figure.quantities) > 1 else names[i]) if many else q
             invalid |= _draw_line(ax, c.frequency_hz, np.asarray(data[q], float), c.valid, color,
                                   _QUANTITY_STYLE[q], label)
+    _resonances(ax, figure, many)
     _decorate(ax, figure, True, invalid)
     _frequency_axis(ax, *_span(figure))
     qs = figure.quantities
@@ -186,6 +187,24 @@ def _impedance(fig, figure: Figure) -> None:
         ax.axhline(0, color="#888888", lw=0.6)
     _title(ax, figure.title)
     _legend(fig, ax, common)
+
+
+def _resonances(ax, figure: Figure, many: bool) -> None:
+    """Each curve's self-resonance as a downward triangle on its first quantity, in its colour."""
+    from matplotlib.lines import Line2D
+
+    marked = False
+    q = figure.quantities[0]
+    for i, (c, f0) in enumerate(zip(figure.curves, figure.resonances)):
+        if not f0 or not (c.frequency_hz[0] <= f0 <= c.frequency_hz[-1]):
+            continue
+        values = {"R": c.resistance, "X": c.reactance, "|X|": np.abs(c.reactance), "|Z|": c.magnitude}[q]
+        y = np.interp(np.log(f0), np.log(c.frequency_hz), np.asarray(values, float))
+        color = PALETTE[i % len(PALETTE)] if many else PALETTE[0]
+        ax.plot([f0], [y], "v", ms=7, color=color, mec="white", mew=0.8, zorder=5)
+        marked = True
+    if marked:
+        ax.add_line(Line2D([], [], ls="none", marker="v", ms=7, color="#555555", label="self-resonance"))
 
 
 def _series(fig, figure: Figure) -> None:

@@ -107,7 +107,8 @@ class Figure:
     (``y_label``), e.g. CMRR in dB, and optional further ``panels`` ((y label, series), ...)
     drawn below it on the same frequency axis (amplitude and phase imbalance). ``band`` is
     shaded; ``target`` draws a horizontal line on the first panel; ``markers`` are
-    (frequency [Hz], label) pairs marked on the frequency axis (self-resonance).
+    (frequency [Hz], label) pairs marked on the frequency axis (self-resonance of one curve);
+    ``resonances`` gives each curve's own self-resonance [Hz] (None: none), marked on it.
     """
 
     kind: str
@@ -121,6 +122,7 @@ class Figure:
     target_label: str = ""
     panels: tuple[tuple[str, tuple[Series, ...]], ...] = ()
     markers: tuple[tuple[float, str], ...] = ()
+    resonances: tuple[float | None, ...] = ()
 
     def __post_init__(self) -> None:
         if self.kind not in ("impedance", "series"):
@@ -129,6 +131,7 @@ class Figure:
         object.__setattr__(self, "series", tuple(self.series))
         object.__setattr__(self, "panels", tuple((label, tuple(s)) for label, s in self.panels))
         object.__setattr__(self, "markers", tuple(self.markers))
+        object.__setattr__(self, "resonances", tuple(self.resonances))
 
 
 @dataclass(frozen=True)

@@ -128,7 +128,8 @@ def size_report(
     curves = tuple(context_curve(d.design, s.band, f"#{i} {d.design.material.name} {d.core.stack}×({_core_text(d.design)}) "
                                  f"N={d.design.winding.turns}") for i, d in enumerate(shown, 1))
     figures = (Figure("impedance", curves=curves, band=s.band, quantities=("R",), target=s.target_ohm,
-                      title=f"{'designs' if designs else 'closest design'} for {s.metric_name} ≥ {s.target_ohm:g} Ω, "
+                      resonances=tuple(d.self_resonance_hz or None for d in shown),
+                      title=f"{'designs' if designs else 'closest design'} for {s.metric_name} ≥ {format_quantity(s.target_ohm, 'Ω')}, "
                             f"{s.band}"),) if curves else ()
     return Report(title=title, inputs={"band": str(s.band), "target_ohm": s.target_ohm, "criterion": s.criterion},
                   body=tuple(body), json=json, figures=figures, notes=tuple(notes))
