@@ -24,3 +24,20 @@ app = typer.Typer(
 
 EXIT_LIMIT_FAILED = 1
 EXIT_BAD_INPUT = 2
+
+
+def _print_version(value: bool) -> None:
+    if value:
+        from .. import __version__
+
+        print(f"cmcheck {__version__}")
+        raise typer.Exit(0)
+
+
+@app.callback()
+def _root(
+    version: bool = typer.Option(False, "--version", help="Print the version and exit.", is_eager=True,
+                                 callback=_print_version),
+) -> None:
+    """Predict, measure and size RF common-mode chokes and baluns on ferrite cores."""
+

@@ -98,6 +98,7 @@ def extract(
     spice_out: Annotated[Optional[Path], typer.Option("--spice", help="Single file: write the winding's fitted equivalent circuit as a SPICE subcircuit.", rich_help_panel=o.OUTPUT_PANEL)] = None,
     transformer: Annotated[Optional[str], typer.Option("--transformer", help="Check a built transformer of this topology (e.g. flux-1:49): a one-port into its load resistor, or two units back to back as a two-port; SWR against --max-swr.", rich_help_panel=LIMIT_PANEL)] = None,
     max_swr: Annotated[Optional[float], typer.Option("--max-swr", help="With --transformer: pass when SWR ≤ this over the band (default 2).", rich_help_panel=LIMIT_PANEL)] = None,
+    html_out: o.HtmlOut = None,
     vs_model: Annotated[bool, typer.Option("--vs-model", help="Compare with the model of the design given by the design options.", rich_help_panel=o.DESIGN_PANEL)] = False,
     design_options: dict = None,
 ) -> None:
@@ -143,7 +144,7 @@ def extract(
     material = design_options["material"]
     if material and Path(material).is_file():
         inputs.append(material)
-    check_outputs([json_out, csv_out, plot_out, summary_out, spice_out], inputs)
+    check_outputs([json_out, csv_out, plot_out, summary_out, spice_out, html_out], inputs)
     if spice_out is not None and (len(paths) != 1 or legs is not None):
         raise CmcheckError("--spice fits one winding: give a single Touchstone file")
 
@@ -169,7 +170,8 @@ def extract(
 
         extra = (spice_writer(spice_out, good[0].extraction),)
     # Files first, all or none: a closed pipe (| head) must not cost the user the results.
-    write_report(report, json=json_out, csv={"long": csv_out, "summary": summary_out}, plot=plot_out, extra=extra)
+    write_report(report, json=json_out, csv={"long": csv_out, "summary": summary_out}, plot=plot_out, extra=extra,
+                 html=html_out)
     show(report)
     raise typer.Exit(exit_status(results))
 

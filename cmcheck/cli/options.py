@@ -96,7 +96,11 @@ BandOpt = Annotated[
 Points = Annotated[int, typer.Option("--points", help="Log-spaced frequency points across the band.", min=2, max=100000)]
 JsonOut = Annotated[Optional[Path], typer.Option("--json", help="Write the results as JSON to this file.", rich_help_panel=OUTPUT_PANEL)]
 CsvOut = Annotated[Optional[Path], typer.Option("--csv", help="Write the curve as CSV to this file.", rich_help_panel=OUTPUT_PANEL)]
-PlotOut = Annotated[Optional[Path], typer.Option("--plot", help="Plot to this PNG file (log frequency).", rich_help_panel=OUTPUT_PANEL)]
+PlotOut = Annotated[Optional[Path], typer.Option("--plot", help="Plot to this file; .png, .svg or .pdf by its extension.", rich_help_panel=OUTPUT_PANEL)]
+#: One self-contained offline HTML report (tables, plots, inputs, cautions). A command offers it
+#: with a parameter ``html_out: o.HtmlOut = None``, lists it in ``check_outputs`` and passes
+#: ``html=html_out`` to ``write_report``.
+HtmlOut = Annotated[Optional[Path], typer.Option("--html", help="Write a self-contained offline HTML report (tables, plots, inputs) to this file.", rich_help_panel=OUTPUT_PANEL)]
 
 
 #: The design options, declared once: (parameter, annotated type, default), in help order.

@@ -48,6 +48,7 @@ def predict(
     json_out: o.JsonOut = None,
     csv_out: o.CsvOut = None,
     plot_out: o.PlotOut = None,
+    html_out: o.HtmlOut = None,
     touchstone_out: Annotated[
         Optional[Path],
         typer.Option("--touchstone", help="Write the choke as a series two-port .s2p (50 Ω) file.", rich_help_panel=o.OUTPUT_PANEL),
@@ -69,14 +70,15 @@ def predict(
     b = o.band_from_option(band)
     material = design_options["material"]
     inputs = [material] if material and Path(material).is_file() else []
-    check_outputs([json_out, csv_out, plot_out, touchstone_out], inputs)
+    check_outputs([json_out, csv_out, plot_out, touchstone_out, html_out], inputs)
     drive = _drive(power, cm_voltage, cm_current, feed_impedance)
     result = predict_choke(design, b, points)
     report = prediction_report(result, rows)
     if drive is not None:
         report = with_heat(report, result, drive)
     # Files first, all or none: a closed pipe (| head) must not cost the user the results.
-    write_report(report, json=json_out, csv={"curve": csv_out}, plot=plot_out, touchstone=touchstone_out)
+    write_report(report, json=json_out, csv={"curve": csv_out}, plot=plot_out, touchstone=touchstone_out,
+                 html=html_out)
     show(report)
 
 

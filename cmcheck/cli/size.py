@@ -146,6 +146,7 @@ def size_command(
     keep_hot: Annotated[bool, typer.Option("--keep-hot", help="List designs above --max-rise too, flagged, instead of dropping them.", rich_help_panel=HEAT_PANEL)] = False,
     json_out: o.JsonOut = None,
     plot_out: o.PlotOut = None,
+    html_out: o.HtmlOut = None,
 ) -> None:
     """Find the chokes worth winding: material × core size × stacked cores × turns that meet a target.
 
@@ -189,7 +190,7 @@ def size_command(
         cp_factor=cp_factor, points=points, top=top, drive=drive, max_rise_k=max_rise, keep_hot=keep_hot,
         winding_angle=None if winding_angle is None else math.radians(winding_angle),
     )
-    check_outputs([json_out, plot_out], _material_files(materials) + ([sizes] if sizes else []))
+    check_outputs([json_out, plot_out, html_out], _material_files(materials) + ([sizes] if sizes else []))
     bar = _LazyProgress()
     try:
         result = run_size(spec, progress=bar)
@@ -199,7 +200,7 @@ def size_command(
                          sizes_hint="add your own with --sizes FILE, or search only them with --no-builtin-sizes",
                          check=_predict_command(result.designs[0], band, conductor) if result.designs else None)
     # Files first: a closed pipe (| head) must not cost the user the JSON or the plot.
-    write_report(report, json=json_out, plot=plot_out)
+    write_report(report, json=json_out, plot=plot_out, html=html_out)
     show(report)
     if not result.ok:
         raise typer.Exit(EXIT_LIMIT_FAILED)
@@ -216,6 +217,7 @@ def compare_command(
     line_x_max: Annotated[str, typer.Option("--line-x-max", help="Largest |reactance| of the line's unknown common-mode impedance (common practice default).")] = f"{DEFAULT_LINE_X_MAX:g}",
     json_out: o.JsonOut = None,
     plot_out: o.PlotOut = None,
+    html_out: o.HtmlOut = None,
 ) -> None:
     """Rank materials on one core and winding over a band.
 
@@ -232,9 +234,9 @@ def compare_command(
     b = o.band_from_option(band)
     r_max = o.parse_option("--line-r-max", parse_resistance, line_r_max)
     x_max = o.parse_option("--line-x-max", parse_resistance, line_x_max)
-    check_outputs([json_out, plot_out], _material_files(materials))
+    check_outputs([json_out, plot_out, html_out], _material_files(materials))
     result = compare_designs(designs, b, points=points, line_r_max=r_max, line_x_max=x_max)
     report = comparison_report(result, generic=designs[0].describe().rsplit(",", 1)[0])
     # Files first: a closed pipe (| head) must not cost the user the JSON or the plot.
-    write_report(report, json=json_out, plot=plot_out)
+    write_report(report, json=json_out, plot=plot_out, html=html_out)
     show(report)

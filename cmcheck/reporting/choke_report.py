@@ -8,6 +8,7 @@ from ..curve import ImpedanceCurve
 from ..model.choke import Prediction
 from ..units import format_quantity, span_digits
 from .files import SAFETY_NOTES
+from .numbers import format_number
 from .results import Column, Figure, Report, Table, Text
 
 __all__ = ["curve_table", "prediction_report", "table_indices"]
@@ -15,9 +16,9 @@ __all__ = ["curve_table", "prediction_report", "table_indices"]
 #: Columns of an impedance curve in files (the project's standard keys).
 CURVE_COLUMNS = (
     Column("frequency_hz", "frequency", "Hz", "hz", ".9g"),
-    Column("resistance_ohm", "R [Ω]", "Ω", ",.1f", ".9g"),
-    Column("reactance_ohm", "X [Ω]", "Ω", ",.1f", ".9g"),
-    Column("impedance_ohm", "|Z| [Ω]", "Ω", ",.1f", ".9g"),
+    Column("resistance_ohm", "R [Ω]", "Ω", "num", ".9g"),
+    Column("reactance_ohm", "X [Ω]", "Ω", "num", ".9g"),
+    Column("impedance_ohm", "|Z| [Ω]", "Ω", "num", ".9g"),
     Column("valid", "valid", "", "yesno", "int"),
 )
 
@@ -45,7 +46,7 @@ def prediction_report(result: Prediction, rows: int = 16) -> Report:
     core = design.core
     core_info = [f"C1 = Σl/A = {core.c1:.5g} 1/m"]
     if None not in (core.le, core.ae, core.ve):
-        core_info.append(f"le = {core.le * 1e3:.4g} mm, Ae = {core.ae * 1e6:.4g} mm², Ve = {core.ve * 1e9:.4g} mm³")
+        core_info.append(f"le = {core.le * 1e3:.4g} mm, Ae = {core.ae * 1e6:.4g} mm², Ve = {format_number(core.ve * 1e9)} mm³")
     wind_info = [f"L0 = {format_quantity(design.l0, 'H')}",
                  f"L(low f) = {format_quantity(s['low_frequency_inductance_h'], 'H')}",
                  f"Cp = {format_quantity(s['cp_f'], 'F')} ({s['cp_source']})"]
@@ -77,8 +78,8 @@ def prediction_report(result: Prediction, rows: int = 16) -> Report:
                                                      ("gap", "air", "chain", "core", "leads"))))
     body += [
         shown,
-        Text(f"band {band}: min R = {s['min_resistance_ohm']:,.1f} Ω at "
-             f"{format_quantity(s['min_resistance_hz'], 'Hz', digits)}, max R = {s['max_resistance_ohm']:,.1f} Ω at "
+        Text(f"band {band}: min R = {format_number(s['min_resistance_ohm'])} Ω at "
+             f"{format_quantity(s['min_resistance_hz'], 'Hz', digits)}, max R = {format_number(s['max_resistance_ohm'])} Ω at "
              f"{format_quantity(s['max_resistance_hz'], 'Hz', digits)}"),
         Text(f"self-resonance: {srf_text}; mostly resistive (R > |X|) over "
              f"{100 * s['resistive_fraction']:.0f} % of the band"),
@@ -91,6 +92,7 @@ def prediction_report(result: Prediction, rows: int = 16) -> Report:
         body=tuple(body),
         json=result.to_dict(),
         data={"curve": curve_table(curve, (title, "predicted by cmcheck (model estimate, not a measurement)"))},
-        figures=(Figure("impedance", title=title, curves=(curve,), band=band),),
+        figures=(Figure("impedance", title=title, curves=(curve,), band=band,
+                        markers=((srf, f"self-resonance {format_quantity(srf, 'Hz')}"),) if srf else ()),),
         notes=SAFETY_NOTES[:1],
     )

@@ -15,8 +15,8 @@ def comparison_report(result: Comparison, *, generic: str) -> Report:
     b = result.band
     title = f"{generic}, over {b}"
     cols = (Column("rank", "#", "", "int", "int"), Column("material", "material"),
-            Column("min_resistance_ohm", "min R [Ω]", "Ω", ",.0f", ".6g"), Column("min_resistance_hz", "at", "Hz", "hz3", ".6g"),
-            Column("mean_resistance_ohm", "mean R [Ω]", "Ω", ",.0f", ".6g"),
+            Column("min_resistance_ohm", "min R [Ω]", "Ω", "num", ".6g"), Column("min_resistance_hz", "at", "Hz", "hz3", ".6g"),
+            Column("mean_resistance_ohm", "mean R [Ω]", "Ω", "num", ".6g"),
             Column("peak_resistance_hz", "peak R at", "Hz", "hz3", ".6g"),
             Column("resistive_fraction", "R>|X| [%]", "", "percent", ".4g"),
             Column("worst_case_reduction_db", "worst cut [dB]", "dB", "+.1f", ".4g"),
@@ -48,6 +48,7 @@ def comparison_report(result: Comparison, *, generic: str) -> Report:
     notes.append(SAFETY_NOTES[0])
     return Report(title=title, inputs={"band": str(b), "materials": [s.name for s in result.scores]},
                   body=tuple(body), json=result.to_dict(), data={"designs": designs},
-                  figures=(Figure("impedance", curves=tuple(comparison_curves(result)), band=b, quantities=("R",),
-                                  title=f"R(f): {generic}"),),
+                  figures=(Figure("impedance", curves=tuple(comparison_curves(result)), band=b, quantities=("R", "|X|"),
+                                  resonances=tuple(s.prediction.summary["self_resonance_hz"] for s in result.scores),
+                                  title=f"R and |X| per material: {generic}"),),
                   notes=tuple(notes))

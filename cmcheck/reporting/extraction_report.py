@@ -13,6 +13,7 @@ from ..measurement.qa import FileResult, Limits, result_to_dict
 from ..units import format_quantity
 from .choke_report import table_indices
 from .files import SAFETY_NOTES
+from .numbers import format_number
 from .results import Column, Figure, Report, Series, Table, Text
 from .winding_report import estimate_dict, estimate_text, estimates_table, winding_estimate
 
@@ -39,9 +40,7 @@ _METHOD_NAMES = {"series": "series-through", "shunt": "shunt-through", "reflect"
 
 
 def _num(v) -> str:
-    if v is None or not np.isfinite(v):
-        return "–"
-    return f"{v:,.0f}" if abs(v) >= 1e4 else f"{v:.4g}"
+    return format_number(v)
 
 
 def _hz(v) -> str:
@@ -312,8 +311,16 @@ def _figure(results: Sequence[FileResult], limits: Limits, design) -> Figure | N
     if not balanced:
         return None
     t = limits.target_cmrr_db
+    shown = balanced[:MAX_PLOTTED]
+    more = f" (first {MAX_PLOTTED} of {len(balanced)})" if len(balanced) > MAX_PLOTTED else ""
+
+    def series(attr: str) -> tuple:
+        return tuple(Series(ex.source, ex.balance.frequency_hz, getattr(ex.balance, attr), ex.valid) for ex in shown)
+
     return Figure(
-        "series", title="common-mode rejection |S_d21/S_c21|", y_label="CMRR [dB] (grey: not valid)",
-        series=tuple(Series(ex.source, ex.balance.frequency_hz, ex.balance.cmrr_db, ex.valid) for ex in balanced[:MAX_PLOTTED]),
+        "series", title=("Balance: " + (shown[0].source if len(shown) == 1 else f"{len(shown)} units")) + more,
+        y_label="CMRR [dB]", series=series("cmrr_db"),
+        panels=(("amplitude imbalance [dB]", series("amplitude_imbalance_db")),
+                ("phase imbalance [°]", series("phase_imbalance_deg"))),
         band=limits.band, target=t, target_label="" if t is None else f"target {t:g} dB",
     )

@@ -1,4 +1,4 @@
-"""Writing a report's files together: JSON, CSV tables, the plot and a Touchstone file."""
+"""Writing a report's files together: JSON, CSV tables, the plot, an HTML page and a Touchstone file."""
 
 from __future__ import annotations
 
@@ -6,7 +6,7 @@ import os
 from typing import Callable, Mapping, Sequence
 
 from .files import staged_outputs, write_json, write_table_csv, write_touchstone
-from .plots import plot_figure
+from .plots import plot_figure, plot_format
 from .results import Report
 
 __all__ = ["write_report"]
@@ -22,6 +22,7 @@ def write_report(
     plot: PathLike | None = None,
     touchstone: PathLike | None = None,
     extra: Sequence[Callable[[], None]] = (),
+    html: PathLike | None = None,
 ) -> None:
     """Write the asked outputs of ``report`` all together or none (see :func:`staged_outputs`).
 
@@ -32,13 +33,18 @@ def write_report(
     csv : mapping of table name to path, optional
         Tables of ``report.data`` to write as CSV (a name the report lacks is skipped).
     plot : path, optional
-        The report's first figure as PNG (skipped when it has none).
+        The report's first figure, as PNG, SVG or PDF by the file's extension (skipped when
+        it has none; any other extension is refused before anything is written).
     touchstone : path, optional
         The first figure's first impedance curve as a series two-port ``.s2p`` file.
     extra : sequence of callables
         Further writers (each writes one file through :func:`~cmcheck.reporting.files.atomic_write`),
         staged with the rest.
+    html : path, optional
+        The whole report as one self-contained offline HTML page (:mod:`cmcheck.reporting.html`).
     """
+    if plot:
+        plot_format(plot)
     with staged_outputs():
         if json and report.json is not None:
             write_json(json, report.json)
@@ -47,6 +53,10 @@ def write_report(
                 write_table_csv(path, report.data[name])
         if plot and report.figures:
             plot_figure(plot, report.figures[0])
+        if html:
+            from .html import write_html
+
+            write_html(html, report)
         if touchstone:
             fig = report.figures[0]
             write_touchstone(touchstone, fig.curves[0], comments=report.data["curve"].comments)

@@ -4,7 +4,7 @@ A library result (a choke prediction, an extraction batch, a sizing search, a ma
 comparison) is turned into a :class:`Report` by the ``*_report`` modules beside this one.
 A report holds numbers and descriptions only; the renderers decide how they look:
 :mod:`cmcheck.reporting.text` (console), :mod:`cmcheck.reporting.files` (JSON, CSV),
-:mod:`cmcheck.reporting.plots` (PNG). An HTML renderer can walk the same objects.
+:mod:`cmcheck.reporting.plots` (PNG, SVG, PDF), :mod:`cmcheck.reporting.html` (one offline page).
 """
 
 from __future__ import annotations
@@ -103,8 +103,12 @@ class Figure:
     """What to plot, not how.
 
     ``kind`` "impedance": ``curves`` are :class:`~cmcheck.curve.ImpedanceCurve` objects and
-    ``quantities`` picks from R, X and |Z|. ``kind`` "series": ``series`` of one quantity
-    (``y_label``), e.g. CMRR in dB. ``band`` is shaded; ``target`` draws a horizontal line.
+    ``quantities`` picks from R, X, |X| and |Z|. ``kind`` "series": ``series`` of one quantity
+    (``y_label``), e.g. CMRR in dB, and optional further ``panels`` ((y label, series), ...)
+    drawn below it on the same frequency axis (amplitude and phase imbalance). ``band`` is
+    shaded; ``target`` draws a horizontal line on the first panel; ``markers`` are
+    (frequency [Hz], label) pairs marked on the frequency axis (self-resonance of one curve);
+    ``resonances`` gives each curve's own self-resonance [Hz] (None: none), marked on it.
     """
 
     kind: str
@@ -116,12 +120,18 @@ class Figure:
     band: Any = None
     target: float | None = None
     target_label: str = ""
+    panels: tuple[tuple[str, tuple[Series, ...]], ...] = ()
+    markers: tuple[tuple[float, str], ...] = ()
+    resonances: tuple[float | None, ...] = ()
 
     def __post_init__(self) -> None:
         if self.kind not in ("impedance", "series"):
             raise ValueError(f"figure kind must be 'impedance' or 'series', got {self.kind!r}")
         object.__setattr__(self, "curves", tuple(self.curves))
         object.__setattr__(self, "series", tuple(self.series))
+        object.__setattr__(self, "panels", tuple((label, tuple(s)) for label, s in self.panels))
+        object.__setattr__(self, "markers", tuple(self.markers))
+        object.__setattr__(self, "resonances", tuple(self.resonances))
 
 
 @dataclass(frozen=True)

@@ -8,6 +8,7 @@ from ..design.diagnosis import Remedy, format_rise
 from ..design.search import SizeResult
 from ..units import format_quantity
 from .files import SAFETY_NOTES
+from .numbers import format_number
 from .results import Cell, Column, Figure, Report, Table, Text
 
 __all__ = ["context_curve", "size_report"]
@@ -74,7 +75,7 @@ def size_report(
         key = "min_resistance_ohm" if by_r else "min_impedance_ohm"
         cols = (Column("rank", "#", "", "int", "int"), Column("material", "material"),
                 Column("core", "n × OD×ID×H [mm]"), Column("turns", "turns", "", "int", "int"),
-                Column(key, f"min {s.metric_name} [Ω]", "Ω", ",.0f", ".6g"),
+                Column(key, f"min {s.metric_name} [Ω]", "Ω", "num", ".6g"),
                 Column(key.replace("_ohm", "_hz"), "at", "Hz", "hz3", ".6g"),
                 Column("margin", "margin", "", "margin", ".4g"),
                 Column("self_resonance_hz", "SRF", "Hz", "hz3", ".6g"),
@@ -114,7 +115,7 @@ def size_report(
             v = c.min_resistance_ohm if by_r else c.min_impedance_ohm
             hz = c.min_resistance_hz if by_r else c.min_impedance_hz
             srf = format_quantity(c.self_resonance_hz, "Hz", 3) if c.self_resonance_hz else "none found"
-            line = (f"closest: {c.design.describe()}: min {s.metric_name} {v:,.0f} Ω at {format_quantity(hz, 'Hz', 3)} "
+            line = (f"closest: {c.design.describe()}: min {s.metric_name} {format_number(v)} Ω at {format_quantity(hz, 'Hz', 3)} "
                     f"({c.margin * 100:.0f} % of target), SRF {srf}")
             if c.heat is not None:
                 line += (f", {c.heat['dissipation_w']:.3g} W → ΔT {format_rise(c.heat['temperature_rise_k'])}, "
@@ -133,7 +134,8 @@ def size_report(
     curves = tuple(context_curve(d.design, s.band, f"#{i} {d.design.material.name} {d.core.stack}×({_core_text(d.design)}) "
                                  f"N={d.design.winding.turns}") for i, d in enumerate(shown, 1))
     figures = (Figure("impedance", curves=curves, band=s.band, quantities=("R",), target=s.target_ohm,
-                      title=f"{'designs' if designs else 'closest design'} for {s.metric_name} ≥ {s.target_ohm:g} Ω, "
+                      resonances=tuple(d.self_resonance_hz or None for d in shown),
+                      title=f"{'designs' if designs else 'closest design'} for {s.metric_name} ≥ {format_quantity(s.target_ohm, 'Ω')}, "
                             f"{s.band}"),) if curves else ()
     return Report(title=title, inputs={"band": str(s.band), "target_ohm": s.target_ohm, "criterion": s.criterion},
                   body=tuple(body), json=json, figures=figures, notes=tuple(notes))

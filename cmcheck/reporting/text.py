@@ -15,9 +15,11 @@ from rich.markup import escape
 from rich.table import Table as RichTable
 
 from ..units import format_quantity
+from .numbers import column_formatter, frequency_formatter, unsigned_zero
 from .results import Cell, Column, Report, Table, Text
 
-__all__ = ["FORMATS", "format_cell", "render", "render_notes", "render_table", "rich_table"]
+__all__ = ["FORMATS", "format_cell", "format_column", "format_table", "render", "render_notes", "render_table",
+           "rich_table"]
 
 _DASH = "–"
 
@@ -26,9 +28,9 @@ def _missing(v) -> bool:
     return v is None or (isinstance(v, float) and not math.isfinite(v))
 
 
-def _num(v, digits: int = 4) -> str:
-    """Four significant digits, with thousands separators once the number is large."""
-    return f"{v:,.0f}" if abs(v) >= 10 ** digits else f"{v:.{digits}g}"
+def _num(v) -> str:
+    """A lone number by the column rule of :mod:`cmcheck.reporting.numbers`."""
+    return column_formatter([v])(v)
 
 
 def _margin(m: float) -> str:
@@ -58,8 +60,31 @@ FORMATS: dict[str, Callable] = {
 }
 
 
-def format_cell(value, column: Column) -> str:
-    """The console text of one cell."""
+def _column_aware(column: Column, values) -> Callable | None:
+    """The formatter chosen once for a whole column, for the column-aware formats."""
+    fmt = column.format
+    if fmt == "num":
+        return column_formatter(values)
+    if fmt in ("hz", "hz3") or fmt.startswith("hz:"):
+        return frequency_formatter(values, 3 if fmt == "hz3" else int(fmt[3:]) if fmt.startswith("hz:") else 4)
+    return None
+
+
+def format_column(values, column: Column) -> list[str]:
+    """The console (and HTML) text of every cell of one column, its format chosen from all of them."""
+    raw = [v.value if isinstance(v, Cell) else v for v in values]
+    chosen = _column_aware(column, raw)
+    return [format_cell(v, column, chosen) for v in values]
+
+
+def format_table(table: Table) -> list[list[str]]:
+    """The text of every cell of a table, row by row."""
+    cols = [format_column([r[i] for r in table.rows], c) for i, c in enumerate(table.columns)]
+    return [list(row) for row in zip(*cols)] if table.rows else []
+
+
+def format_cell(value, column: Column, chosen: Callable | None = None) -> str:
+    """The console text of one cell (``chosen``: the column's formatter from :func:`format_column`)."""
     suffix = ""
     if isinstance(value, Cell):
         value, suffix = value.value, value.suffix
@@ -70,11 +95,13 @@ def format_cell(value, column: Column) -> str:
     if _missing(value):
         return _DASH + suffix if value is None or column.format != "text" else str(value)
     fmt = column.format
+    if chosen is not None:
+        return chosen(value) + suffix
     if fmt.startswith("hz:"):
         return format_quantity(value, "Hz", int(fmt[3:])) + suffix
     if fmt in FORMATS:
-        return FORMATS[fmt](value) + suffix
-    return format(value, fmt) + suffix
+        return unsigned_zero(FORMATS[fmt](value)) + suffix
+    return unsigned_zero(format(value, fmt)) + suffix
 
 
 def rich_table(*headers: str) -> RichTable:
@@ -99,7 +126,7 @@ def _to_rich(table: Table) -> tuple[RichTable, list[list[str]]]:
         t.columns[i].no_wrap = True
     if table.tight:
         t.padding = (0, 1, 0, 0)
-    cells = [[format_cell(v, c) for v, c in zip(row, table.columns)] for row in table.rows]
+    cells = format_table(table)
     for row in cells:
         t.add_row(*(escape(x) for x in row))
     return t, cells
