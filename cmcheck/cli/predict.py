@@ -20,6 +20,7 @@ from .render import console, print_notes, show, table
 
 
 @app.command()
+@o.with_design_file
 @o.with_design_options()
 def predict(
     design_options: dict = None,
