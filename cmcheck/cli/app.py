@@ -102,3 +102,4 @@ def _run(argv: list[str] | None) -> int:
 from . import predict  # noqa: E402,F401
 from . import extract  # noqa: E402,F401
 from . import size  # noqa: E402,F401
+from . import demo  # noqa: E402,F401

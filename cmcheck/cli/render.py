@@ -12,6 +12,14 @@ from ..reporting.results import Report
 from ..reporting.text import render, render_notes, rich_table
 
 class _Console(Console):
+    def print(self, *objects, **kwargs) -> None:
+        # Lines of prose (results, notes, a command to copy) are never wrapped by us: a
+        # wrapped command line cannot be pasted, and piped output must not depend on a width.
+        # Tables keep their layout.
+        if objects and all(isinstance(o, str) for o in objects):
+            kwargs.setdefault("soft_wrap", True)
+        super().print(*objects, **kwargs)
+
     def on_broken_pipe(self) -> None:
         # rich would exit with status 1, which here means "a limit failed"; let the one
         # place that maps errors to exit codes decide instead.
@@ -20,11 +28,14 @@ class _Console(Console):
         raise BrokenPipeError("output pipe closed")
 
 
+#: Width of tables when the output is piped or redirected: fixed, whatever COLUMNS says, so a
+#: log or a README transcript reads the same everywhere (rich would take 80 or COLUMNS).
+PIPED_WIDTH = 110
+
 #: Standard output; rich drops colour by itself when the output is not a terminal.
 console = _Console(highlight=False)
-if not console.is_terminal and "COLUMNS" not in os.environ:
-    # Piped or redirected output: rich would wrap at 80 columns; tables read better wider.
-    console.width = 110
+if not console.is_terminal:
+    console.width = PIPED_WIDTH
 #: Standard error, for warnings and notes that must not mix with piped tables.
 err_console = Console(stderr=True, highlight=False)
 
