@@ -47,7 +47,7 @@ from .errors import CmcheckError, UnitError
 from .inputs import read_capped
 from .units import Band, parse_band, parse_capacitance, parse_length, parse_resistance, parse_wire_diameter
 
-__all__ = ["DesignFile", "DesignFileError", "KEYS", "Key", "load_design", "parse_design"]
+__all__ = ["DesignFile", "DesignFileError", "KEYS", "Key", "format_design", "load_design", "parse_design"]
 
 #: Largest design file read [bytes]; a design is a few hundred bytes.
 MAX_BYTES = 1 << 20
@@ -271,3 +271,24 @@ def _number(where: str, value: Any) -> float:
 def _show(value: Any) -> str:
     text = repr(value)
     return text if len(text) <= 40 else text[:37] + "..."
+
+
+def format_design(values: Mapping[str, Any], comments: tuple[str, ...] = ()) -> str:
+    """TOML text of a design: ``values`` maps key names (``"core.od"``) to text with units
+    (``"61mm"``), whole numbers or SI numbers; ``comments`` go first as ``#`` lines."""
+    for name in values:
+        if name not in _BY_NAME:
+            raise DesignFileError(f"unknown key {name}")
+
+    def toml(v: Any) -> str:
+        if isinstance(v, str):
+            return '"' + v.replace("\\", "\\\\").replace('"', '\\"') + '"'
+        return repr(v)
+
+    out = [f"# {c}" for c in comments]
+    out += [f"{k} = {toml(v)}" for k, v in values.items() if "." not in k]
+    for table in _TABLES:
+        items = [(k.split(".", 1)[1], v) for k, v in values.items() if k.startswith(table + ".")]
+        if items:
+            out += ["", f"[{table}]"] + [f"{k} = {toml(v)}" for k, v in items]
+    return "\n".join(out) + "\n"

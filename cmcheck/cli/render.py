@@ -6,10 +6,15 @@ import os
 import sys
 from typing import Iterable
 
-from rich.console import Console
+from rich.console import Console, ConsoleDimensions
 
 from ..reporting.results import Report
 from ..reporting.text import render, render_notes, rich_table
+
+#: Width of tables when the output is piped or redirected: fixed, whatever COLUMNS says, so a
+#: log or a README transcript reads the same everywhere (rich would take 80 or COLUMNS).
+PIPED_WIDTH = 110
+
 
 class _Console(Console):
     def print(self, *objects, **kwargs) -> None:
@@ -20,6 +25,16 @@ class _Console(Console):
             kwargs.setdefault("soft_wrap", True)
         super().print(*objects, **kwargs)
 
+    @property
+    def size(self):
+        # Asked at every print: standard output may be redirected after start-up.
+        size = Console.size.fget(self)
+        return size if self.is_terminal else ConsoleDimensions(PIPED_WIDTH, size.height)
+
+    @size.setter
+    def size(self, value) -> None:
+        Console.size.fset(self, value)
+
     def on_broken_pipe(self) -> None:
         # rich would exit with status 1, which here means "a limit failed"; let the one
         # place that maps errors to exit codes decide instead.
@@ -28,14 +43,8 @@ class _Console(Console):
         raise BrokenPipeError("output pipe closed")
 
 
-#: Width of tables when the output is piped or redirected: fixed, whatever COLUMNS says, so a
-#: log or a README transcript reads the same everywhere (rich would take 80 or COLUMNS).
-PIPED_WIDTH = 110
-
 #: Standard output; rich drops colour by itself when the output is not a terminal.
 console = _Console(highlight=False)
-if not console.is_terminal:
-    console.width = PIPED_WIDTH
 #: Standard error, for warnings and notes that must not mix with piped tables.
 err_console = Console(stderr=True, highlight=False)
 

@@ -20,8 +20,9 @@ HTML page all render those same reports.
 from __future__ import annotations
 
 import warnings
-from dataclasses import dataclass
+from dataclasses import dataclass, field, replace
 from pathlib import Path
+from typing import Callable
 
 from ..reporting.demo_report import identification_report, invented, transformer_report
 from ..reporting.results import Report
@@ -39,6 +40,9 @@ class Part:
     name: str
     question: str
     report: Report
+    #: Further files of the part: file name → a writer called with the target path, which
+    #: writes through :mod:`cmcheck.reporting.files` (atomically, staged with the rest).
+    files: dict[str, Callable[[Path], None]] = field(default_factory=dict)
 
 
 def data_dir() -> Path:
@@ -60,11 +64,26 @@ def _feedline_choke() -> Part:
     from ..reporting.size_report import size_report
     from ..units import Band
 
+    from ..designfile import format_design
+    from ..reporting.files import atomic_write
+
     spec = SizeSpec(band=Band.single(1.8e6, 30e6), conductor=Cable(5e-3), materials=list(builtin_materials().values()),
                     sizes=builtin_ring_sizes(), target_ohm=1000.0, top=3,
                     drive=Drive(100.0, feed_impedance_ohm=50.0))
+    result = size(spec)
+    files = {}
+    if result.designs:
+        # The first design as a design file, for predict and extract --vs-model.
+        d = result.designs[0]
+        dims = d.design.core.dimensions()
+        values = {"material": d.design.material.name, "band": "1.8-30MHz",
+                  **{f"core.{k[:-2]}": f"{v * 1e3:.4g}mm" for k, v in dims.items() if k in ("od_m", "id_m", "height_m")},
+                  "core.cores": d.core.stack, "winding.turns": d.design.winding.turns,
+                  "winding.cable_od": "5mm", "target.resistance_ohm": "1k"}
+        text = format_design(values, (INVENTED, "Design #1 of the demo's feedline-choke sizing."))
+        files["feedline-choke.toml"] = lambda p: atomic_write(p, lambda t: Path(t).write_text(text, encoding="utf-8"))
     return Part("feedline-choke", "Which choke on the 5 mm coax gives R ≥ 1 kΩ over 1.8-30 MHz at 100 W?",
-                size_report(size(spec), safety=True))
+                size_report(result, safety=True), files)
 
 
 def _supply_lead() -> Part:
@@ -131,8 +150,13 @@ def _drawer_core(path: Path) -> Part:
         ident = identify(extract(read_touchstone(path)), c1=ring.c1, turns=10, families=families,
                          candidates=list(builtin_materials().values()))
     description = f"{path}: 10 turns on an unmarked {ring.describe()} from the drawer"
+    def material(p: Path) -> None:
+        from ..model.materials import save_material_csv
+
+        save_material_csv(p, ident.frequency_hz, ident.material_permeability(), [INVENTED, *ident.material_comments()])
+
     return Part("drawer-core", "What is this unmarked core made of?",
-                identification_report(ident, description=description))
+                identification_report(ident, description=description), {"drawer-core-material.csv": material})
 
 
 def demo_reports(sweeps: Path | str | None = None) -> list[Part]:
@@ -141,4 +165,4 @@ def demo_reports(sweeps: Path | str | None = None) -> list[Part]:
     folder = Path(sweeps) if sweeps is not None else data_dir()
     units = sorted(folder.glob("unit-*.s2p"))
     parts = [_feedline_choke(), _supply_lead(), _balun(), _member_chokes(units), _drawer_core(folder / "drawer-core.s1p")]
-    return [Part(p.name, p.question, invented(p.report, INVENTED)) for p in parts]
+    return [replace(p, report=invented(p.report, INVENTED)) for p in parts]

@@ -55,6 +55,9 @@ def write_outputs(parts: Sequence[Part], out: str | Path) -> list[Path]:
                 path = out / (f"{part.name}.png" if i == 1 else f"{part.name}-{i}.png")
                 plot_figure(path, figure)
                 written.append(path)
+            for name, writer in part.files.items():
+                writer(out / name)
+                written.append(out / name)
         try:
             from ..reporting import html
         except ImportError:
