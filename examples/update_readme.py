@@ -33,15 +33,17 @@ def main(argv: list[str]) -> int:
         rt.prepare(folder)
         os.chdir(folder)
         try:
-            new, changed = rt.update(text, folder)
+            new, changed, failed = rt.update(text, folder)
         finally:
             os.chdir(here)
     for command in changed:
         print(f"{'out of date' if check else 'updated'}: $ {command}")
     if not check and new != text:
         rt.README.write_text(new, encoding="utf-8")
-    print(f"{len(rt.blocks(text))} blocks, {len(changed)} {'out of date' if check else 'rewritten'}")
-    return 1 if check and changed else 0
+    for problem in failed:
+        print(f"FAILED (left as it was): {problem}", file=sys.stderr)
+    print(f"{len(rt.blocks(text))} blocks, {len(changed)} {'out of date' if check else 'rewritten'}, {len(failed)} failed")
+    return 1 if failed or (check and changed) else 0
 
 
 if __name__ == "__main__":

@@ -134,13 +134,21 @@ def transcript(stdout: str, stderr: str) -> list[str]:
     return normalise(stderr.splitlines() + stdout.splitlines())
 
 
-def update(text: str, cwd: Path, run: Callable[[list[str]], tuple[int, str, str]] = run_in_process) -> tuple[str, list[str]]:
-    """``text`` with every block's output replaced by the command's; returns (text, changed commands)."""
+def update(text: str, cwd: Path, run: Callable[[list[str]], tuple[int, str, str]] = run_in_process):
+    """``text`` with every block's output replaced by the command's.
+
+    Returns (new text, changed blocks, failures); a command that crashes or a file block whose
+    file was not written is left as it was and listed in the failures."""
     lines = text.split("\n")
     changed = []
     results = []
+    failed = []
     for b in blocks(text):
-        _, out, err = run(argv(b.command, cwd))
+        try:
+            _, out, err = run(argv(b.command, cwd))
+        except Exception as exc:  # a crash leaves the block as it was and is reported
+            failed.append(f"{b.command}: {type(exc).__name__}: {exc}")
+            continue
         results.append((b, out, err))
     edits = []
     for b, out, err in results:
@@ -149,6 +157,9 @@ def update(text: str, cwd: Path, run: Callable[[list[str]], tuple[int, str, str]
             changed.append(b.command)
         edits.append((b.start + 1, b.end, shown))
     for fb in file_blocks(text):
+        if not (cwd / fb.path).is_file():
+            failed.append(f"file {fb.path}: not written by the commands above it")
+            continue
         content = (cwd / fb.path).read_text(encoding="utf-8").splitlines()
         if normalise(content) != normalise(fb.content):
             changed.append(f"file {fb.path}")
@@ -157,4 +168,4 @@ def update(text: str, cwd: Path, run: Callable[[list[str]], tuple[int, str, str]
         while shown and not shown[-1]:
             shown.pop()
         lines[start:end] = shown
-    return "\n".join(lines), changed
+    return "\n".join(lines), changed, failed

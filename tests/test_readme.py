@@ -64,3 +64,18 @@ def test_wildcards_expand_like_a_shell(tmp_path):
         (tmp_path / "d" / n).write_text("")
     assert rt.argv("cmcheck extract 'x y' d/*.s2p --band 1-2MHz", tmp_path) == ["extract", "x y", "d/a.s2p", "d/b.s2p",
                                                                                "--band", "1-2MHz"]
+
+
+def test_update_rewrites_outputs_and_survives_a_crash(tmp_path):
+    text = "intro\n```\n$ cmcheck a\nold\n```\nmid\n```\n$ cmcheck b\nkept\n```\n<!-- file: f.toml -->\n```toml\nx\n```\n"
+    (tmp_path / "f.toml").write_text("y = 1\n")
+
+    def fake(args):
+        if args == ["b"]:
+            raise RuntimeError("boom")
+        return 0, "new line  \nsecond\n\n", "warning: w\n"
+
+    new, changed, failed = rt.update(text, tmp_path, fake)
+    assert new == ("intro\n```\n$ cmcheck a\nwarning: w\nnew line\nsecond\n```\nmid\n```\n$ cmcheck b\nkept\n```\n"
+                   "<!-- file: f.toml -->\n```toml\ny = 1\n```\n")
+    assert changed == ["cmcheck a", "file f.toml"] and failed == ["cmcheck b: RuntimeError: boom"]
