@@ -12,7 +12,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from cmcheck.designfile import KEYS, DesignFile, DesignFileError, load_design, parse_design
+from cmcheck.designfile import KEYS, DesignFile, DesignFileError, format_design, load_design, parse_design
 from cmcheck.errors import CmcheckError
 
 GOOD = """
@@ -248,3 +248,13 @@ def test_extract_takes_band_target_and_the_model_from_the_file(run_cli, design, 
     assert code == 1
     code, out, _ = run_cli("extract", tmp_path / "r2k.s2p", "--design", design, "--vs-model")
     assert code == 0 and "vs model" in out
+
+
+def test_format_design_round_trips():
+    values = {"material": 'odd "name"\\x.csv', "band": "1.8-30MHz", "core.od": "50mm", "core.cores": 2,
+              "winding.turns": 10, "winding.cp": 2.5e-12, "target.swr": 1.5}
+    d = parse_design(format_design(values, ("a comment",)), "r.toml")
+    assert d.texts["material"] == values["material"] and d.get("core.od") == pytest.approx(0.05, rel=1e-12)
+    assert (d.get("core.cores"), d.get("winding.turns"), d.get("winding.cp"), d.get("target.swr")) == (2, 10, 2.5e-12, 1.5)
+    with pytest.raises(DesignFileError, match="unknown key core.odd"):
+        format_design({"core.odd": 1})
