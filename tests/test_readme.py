@@ -79,3 +79,20 @@ def test_update_rewrites_outputs_and_survives_a_crash(tmp_path):
     assert new == ("intro\n```\n$ cmcheck a\nwarning: w\nnew line\nsecond\n```\nmid\n```\n$ cmcheck b\nkept\n```\n"
                    "<!-- file: f.toml -->\n```toml\ny = 1\n```\n")
     assert changed == ["cmcheck a", "file f.toml"] and failed == ["cmcheck b: RuntimeError: boom"]
+
+
+def test_command_lines_never_wrap_even_on_a_narrow_terminal():
+    import io
+
+    from cmcheck.cli.render import PIPED_WIDTH, _Console
+    from cmcheck.reporting.results import Column, Table
+    from cmcheck.reporting.text import render_table
+
+    line = "check #1 in full: cmcheck predict -m mnzn-8000 --od 50mm --id 30mm --height 12.5mm --turns 10 --band 1.8-30MHz"
+    narrow = _Console(file=io.StringIO(), force_terminal=True, width=40, highlight=False, color_system=None)
+    narrow.print(line, markup=False)
+    assert narrow.file.getvalue().rstrip("\n") == line
+    # Piped: tables are PIPED_WIDTH wide whatever the console was told.
+    piped = _Console(file=io.StringIO(), width=40)
+    render_table(Table((Column("a", "a"), Column("b", "b")), (("x" * 60, "y" * 60),)), piped)
+    assert max(len(x) for x in piped.file.getvalue().splitlines()) > 40 and piped.width == PIPED_WIDTH
