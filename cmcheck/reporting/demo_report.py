@@ -84,7 +84,7 @@ def transformer_report(result, *, description: str, band, rows: int = 8) -> Repo
         if result.mixed_mode_cmrr_db is not None:
             s.append(Series("mixed-mode CMRR (50 Ω legs)", f, result.mixed_mode_cmrr_db))
         figures.append(Figure("series", title=f"CMRR: {description}", series=tuple(s), y_label="CMRR [dB]", band=band))
-    json = {"description": description, "band_hz": band.segments, "power_w": result.power_w,
+    json = {"schema_version": 1, "description": description, "band_hz": band.segments, "power_w": result.power_w,
             "frequency_hz": f, "zin_r_ohm": zin.real, "zin_x_ohm": zin.imag, "swr": result.swr,
             "insertion_loss_db": result.insertion_loss_db, "cmrr_db": result.cmrr_db,
             "mixed_mode_cmrr_db": result.mixed_mode_cmrr_db, "core_loss_w": result.core_loss_w,
