@@ -74,6 +74,7 @@ def _parse_percent(text: str, option: str, allow_zero: bool = False) -> float:
 
 
 @app.command(epilog=EPILOG)
+@o.with_design_file
 @o.with_design_options()
 def extract(
     files: Annotated[Optional[list[str]], typer.Argument(help="Touchstone files (.s1p … .s4p), one unit each.", show_default=False)] = None,
@@ -124,7 +125,9 @@ def extract(
     if (open_file is None) != (short_file is None):
         raise CmcheckError("--open and --short go together: compensation needs both fixture sweeps")
     design = None
-    design_given = any(design_options[k] is not None
+    # A design file may describe the choke for band and limits alone; only options typed
+    # on the command line must come with --vs-model.
+    design_given = any(design_options[k] is not None and not o.from_design_file(k)
                        for k in ("material", "od", "id", "height", "core_factor", "turns", "cable_od", "wire", "cp"))
     if vs_model:
         design = o.design_from_options(**design_options)

@@ -13,6 +13,7 @@ import re
 from typing import NamedTuple
 
 from ..design.diagnosis import Remedy
+from ..designfile import KEYS as DESIGN_KEYS
 
 __all__ = ["FLAGS", "Flag", "names_table", "option_for", "option_message", "option_phrase"]
 
@@ -132,9 +133,24 @@ def option_phrase(remedy: Remedy) -> str:
     return option_for(remedy.parameter)
 
 
+#: Options of design-file keys whose library parameter has no row above (no error names them).
+_FILE_ONLY_OPTIONS = {"width": "--width", "thickness": "--thickness", "length": "--length", "hole": "--hole",
+                      "spacing": "--hole-spacing"}
+
+
 def names_table() -> str:
-    """The Markdown table of DEVELOPERS.md: parameter ↔ option ↔ JSON key ↔ unit."""
-    out = ["| library parameter | CLI option | JSON key | unit |", "| --- | --- | --- | --- |"]
+    """The Markdown table of DEVELOPERS.md: parameter ↔ option ↔ design TOML key ↔ JSON key ↔ unit.
+
+    Design-file keys come from :data:`cmcheck.designfile.KEYS` (matched by library parameter);
+    keys whose parameter has no row here follow at the end.
+    """
+    toml = {k.parameter: k for k in DESIGN_KEYS}
+    out = ["| library parameter | CLI option | design TOML key | JSON key | unit |", "| --- | --- | --- | --- | --- |"]
     for f in _TABLE:
-        out.append(f"| `{f.parameter}` | `{f.option}` | {f'`{f.json_key}`' if f.json_key else '–'} | {f.unit or '–'} |")
+        key = f"`{toml[f.parameter].name}`" if f.parameter in toml else "–"
+        out.append(f"| `{f.parameter}` | `{f.option}` | {key} | {f'`{f.json_key}`' if f.json_key else '–'} | {f.unit or '–'} |")
+    for k in DESIGN_KEYS:
+        if k.parameter not in FLAGS:
+            option = _FILE_ONLY_OPTIONS.get(k.parameter)
+            out.append(f"| `{k.parameter}` | {f'`{option}`' if option else '–'} | `{k.name}` | – | {k.unit or '–'} |")
     return "\n".join(out)

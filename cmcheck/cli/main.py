@@ -11,7 +11,7 @@ import sys
 import warnings
 
 from ..errors import CmcheckError, CmcheckWarning
-from . import extract, identify, predict, size, transformer  # noqa: F401  (each command registers itself on ``app``)
+from . import demo, extract, identify, predict, size, transformer  # noqa: F401  (each command registers itself on ``app``)
 from .app import EXIT_BAD_INPUT, app
 from .flags import option_message
 

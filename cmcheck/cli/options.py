@@ -6,10 +6,10 @@ the same way everywhere (``predict``, ``extract --vs-model``, ``compare``...).
 
 from __future__ import annotations
 
-import math
-
+import contextvars
 import functools
 import inspect
+import math
 from pathlib import Path
 from typing import Annotated, Any, Callable, Optional
 
@@ -18,6 +18,7 @@ import typer
 from ..model.choke import ChokeDesign
 from ..model.cores import Core, FactorCore, RingCore
 from ..model.two_hole import TwoHoleCore
+from ..designfile import DesignFile, load_design
 from ..errors import CmcheckError, UnitError
 from ..model.materials import get_material
 from ..units import Band, parse_band, parse_capacitance, parse_length, parse_wire_diameter
@@ -202,9 +203,9 @@ def design_from_options(
 ) -> ChokeDesign:
     """Build a :class:`~cmcheck.model.choke.ChokeDesign` from option text; errors name the option."""
     if not material:
-        raise CmcheckError("--material is required (a built-in name or a CSV file)")
+        raise missing("--material", alternative="a built-in name or a CSV file")
     if turns is None:
-        raise CmcheckError("--turns is required")
+        raise missing("--turns")
     core = core_from_options(od=od, id=id, height=height, cores=cores, core_factor=core_factor, window=window,
                              width=width, thickness=thickness, length=length, hole=hole, hole_spacing=hole_spacing)
     if wire is not None and cable_od is not None:
@@ -233,9 +234,9 @@ def core_from_options(*, od=None, id=None, height=None, cores: int = 1, core_fac
         if any(v is not None for v in (od, id, height, core_factor, window)):
             raise CmcheckError("give either the two-hole core (--width/--thickness/--length/--hole/--hole-spacing) "
                                "or --od/--id/--height or --core-factor, not both")
-        missing = [n for n, v in two_hole if v is None]
-        if missing:
-            raise CmcheckError(f"the two-hole core needs {', '.join(missing)}")
+        absent = [n for n, v in two_hole if v is None]
+        if absent:
+            raise missing(absent, "the two-hole core")
         core: Core = TwoHoleCore(*(_length(n, v) for n, v in two_hole), cores)
     elif core_factor is not None:
         if any(v is not None for v in (od, id, height)):
@@ -248,9 +249,9 @@ def core_from_options(*, od=None, id=None, height=None, cores: int = 1, core_fac
     else:
         if window is not None:
             raise CmcheckError("--window describes a --core-factor core; a ring's hole is its --id")
-        missing = [n for n, v in (("--od", od), ("--id", id), ("--height", height)) if v is None]
-        if missing:
-            raise CmcheckError(f"the core needs {', '.join(missing)} (or --core-factor)")
+        absent = [n for n, v in (("--od", od), ("--id", id), ("--height", height)) if v is None]
+        if absent:
+            raise missing(absent, "the core", "or --core-factor")
         core = RingCore(_length("--od", od), _length("--id", id), _length("--height", height), cores)
     return core
 
@@ -271,3 +272,112 @@ def core_options(core: Core) -> str:
             continue
         parts.append(f"{CORE_OPTIONS[key]} {value:.5g}" if key.endswith("_per_m") else f"{CORE_OPTIONS[key]} {value * 1e3:.4g}mm")
     return " ".join(parts + [f"--cores {core.stack}"])
+
+
+# --- Design files (cmcheck.designfile): file values under command-line options -------------
+
+#: Command parameter → design-file key. A command that takes ``--design`` fills each of its
+#: parameters listed here from the file unless the option was given on the command line.
+DESIGN_FILE_KEYS: dict[str, str] = {
+    "material": "material", "band": "band", "topology": "topology",
+    **{n: f"core.{n}" for n in ("od", "id", "height", "cores", "core_factor", "window", "width", "thickness",
+                                "length", "hole", "hole_spacing")},
+    **{n: f"winding.{n}" for n in ("turns", "wire", "insulation", "cable_od", "cp")},
+    "target_r": "target.resistance_ohm", "target_z": "target.impedance_ohm", "target_swr": "target.swr",
+    "load": "load.resistance_ohm",
+}
+_CORE = (("od", "id", "height"), ("core_factor", "window"), ("width", "thickness", "length", "hole", "hole_spacing"))
+_CONDUCTOR = (("wire", "insulation"), ("cable_od",))
+_TARGET = (("target_r",), ("target_z",))
+#: Each group of parameters → the groups it excludes.
+_ALTERNATIVES = {g: tuple(o for o in family if o != g) for family in (_CORE, _CONDUCTOR, _TARGET) for g in family}
+#: The option of each design-file key's parameter, for "missing" messages.
+_OPTION_OF_KEY = {key: "--" + name.replace("_", "-") for name, key in DESIGN_FILE_KEYS.items()}
+
+_active_design: contextvars.ContextVar[DesignFile | None] = contextvars.ContextVar("cmcheck_design_file", default=None)
+_from_file: contextvars.ContextVar[frozenset] = contextvars.ContextVar("cmcheck_from_file", default=frozenset())
+
+DesignOpt = Annotated[
+    Optional[Path],
+    typer.Option("--design", help="Design file (TOML: [core], [winding], material, band, [target]...); "
+                 "options given on the command line override it.", rich_help_panel=DESIGN_PANEL),
+]
+
+
+def missing(options, what: str = "", alternative: str = "") -> CmcheckError:
+    """The error for a required value given neither on the command line nor in a ``--design`` file.
+
+    ``options`` is one option or a list; with a design file the message names its keys too.
+    """
+    opts = [options] if isinstance(options, str) else list(options)
+    design = _active_design.get()
+    if design is not None:
+        keys = [k for o in opts for k, opt in _OPTION_OF_KEY.items() if opt == o]
+        alt = f" ({alternative})" if alternative else ""
+        return CmcheckError(f"{design.path}: {', '.join(keys)} missing{' for ' + what if what else ''}: "
+                            f"add it to the file or give {', '.join(opts)}{alt}")
+    if what:
+        return CmcheckError(f"{what} needs {', '.join(opts)}{f' ({alternative})' if alternative else ''}")
+    return CmcheckError(f"{opts[0]} is required{f' ({alternative})' if alternative else ''}")
+
+
+def from_design_file(name: str) -> bool:
+    """Whether the current command took parameter ``name`` from its ``--design`` file."""
+    return name in _from_file.get()
+
+
+def merge_design(design: DesignFile, values: dict[str, Any], given: Callable[[str], bool]) -> tuple[dict, set]:
+    """``values`` (parameter → option value) with the file's values filled in where
+    ``given(parameter)`` is False; returns the merged dict and the names taken from the file."""
+    merged, taken = dict(values), set()
+    # Alternatives: an option typed for one (--wire) sets aside the file's others (cable_od).
+    shadowed = {other for group in _ALTERNATIVES for n in group if n in values and given(n)
+                for other_group in _ALTERNATIVES.get(group, ()) for other in other_group}
+    for name in values:
+        key = DESIGN_FILE_KEYS.get(name)
+        if key is not None and key in design and name not in shadowed and not given(name):
+            merged[name] = design.option_text(key)
+            taken.add(name)
+    return merged, taken
+
+
+def _given_on_command_line(name: str) -> bool:
+    import importlib
+
+    # typer runs on click or on its own vendored copy of it: ask the one typer uses.
+    base = next(c for c in typer.Context.__mro__[1:] if c.__name__ == "Context")
+    ctx = importlib.import_module(base.__module__.rsplit(".", 1)[0] + ".globals").get_current_context(silent=True)
+    if ctx is None:
+        return False
+    source = ctx.get_parameter_source(name)
+    return source is not None and source.name not in ("DEFAULT", "DEFAULT_MAP")
+
+
+def with_design_file(func: Callable) -> Callable:
+    """Give a command ``--design FILE``: its values fill the command's parameters listed in
+    :data:`DESIGN_FILE_KEYS` unless given on the command line (decorate below ``@app.command()``
+    and above ``with_design_options``)."""
+    sig = inspect.signature(func, eval_str=True)
+    param = inspect.Parameter("design_file", inspect.Parameter.KEYWORD_ONLY, default=None, annotation=DesignOpt)
+    params = [p for p in sig.parameters.values()]
+    params.append(param.replace(kind=inspect.Parameter.POSITIONAL_OR_KEYWORD))
+
+    @functools.wraps(func)
+    def command(**kwargs):
+        path = kwargs.pop("design_file", None)
+        if path is None:
+            return func(**kwargs)
+        design = load_design(path)
+        kwargs, taken = merge_design(design, kwargs, _given_on_command_line)
+        tokens = (_active_design.set(design), _from_file.set(frozenset(taken)))
+        try:
+            return func(**kwargs)
+        finally:
+            _from_file.reset(tokens[1])
+            _active_design.reset(tokens[0])
+
+    if hasattr(command, "__wrapped__"):
+        del command.__wrapped__
+    command.__signature__ = sig.replace(parameters=params)
+    command.__annotations__ = {p.name: p.annotation for p in params}
+    return command

@@ -39,6 +39,7 @@ def _drive(power, cm_voltage, cm_current, feed_impedance) -> Drive | None:
 
 
 @app.command()
+@o.with_design_file
 @o.with_design_options()
 def predict(
     design_options: dict = None,

@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import base64
 import html
-from typing import Any, Mapping
+from typing import Any, Mapping, Sequence
 
 from .files import atomic_write
 from .results import Figure, Report, Table, Text
@@ -30,6 +30,7 @@ _STYLE = """
 body { font-family: system-ui, sans-serif; color: #1d2733; margin: 2em auto; max-width: 62em;
        padding: 0 1.2em; line-height: 1.45; background: #ffffff; }
 h1 { font-size: 1.35em; margin-bottom: 0.2em; }
+h3 { font-size: 1.0em; margin-top: 1.4em; }
 h2 { font-size: 1.1em; margin-top: 1.8em; border-bottom: 1px solid #d5dde6; padding-bottom: 0.2em; }
 p.meta { color: #5d6d7e; margin-top: 0; font-size: 0.9em; }
 p.strong { font-weight: 600; }
@@ -92,18 +93,10 @@ def _figure(figure: Figure, index: int) -> str:
             f"<figcaption>Figure {index}: {_e(caption)}</figcaption></figure>")
 
 
-def render_html(report: Report, *, version: str | None = None) -> str:
-    """The report as one HTML document (a string); ``version`` defaults to this cmcheck's."""
-    if version is None:
-        from .. import __version__ as version
-    parts = ["<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8">',
-             f'<meta http-equiv="Content-Security-Policy" content="{CSP}">',  # our constant: no double quote
-             '<meta name="referrer" content="no-referrer">',
-             '<meta name="viewport" content="width=device-width, initial-scale=1">',
-             f"<title>{_e(report.title)} (cmcheck)</title>", f"<style>{_STYLE}</style></head><body>",
-             f"<header><h1>{_e(report.title)}</h1><p class=\"meta\">cmcheck {_e(version)}</p></header>",
-             "<section><h2>Inputs</h2>", _inputs(report.inputs), "</section>",
-             "<section><h2>Results</h2>"]
+def _sections(report: Report, heading: str) -> list[str]:
+    """Inputs, results, plots and cautions of one report, under ``<heading>`` titles."""
+    h = heading
+    parts = [f"<section><{h}>Inputs</{h}>", _inputs(report.inputs), "</section>", f"<section><{h}>Results</{h}>"]
     for block in report.body:
         if isinstance(block, Text):
             parts.append(f'<p class="{"strong" if block.bold else "line"}">{_e(block.text)}</p>')
@@ -111,19 +104,42 @@ def render_html(report: Report, *, version: str | None = None) -> str:
             parts.append(_table(block))
     parts.append("</section>")
     if report.figures:
-        parts.append("<section><h2>Plots</h2>")
+        parts.append(f"<section><{h}>Plots</{h}>")
         parts += [_figure(f, i) for i, f in enumerate(report.figures, 1)]
         parts.append("</section>")
     if report.notes:
-        parts.append('<section><h2>Cautions</h2><ul class="notes">')
+        parts.append(f'<section><{h}>Cautions</{h}><ul class="notes">')
         parts += [f"<li>{_e(n)}</li>" for n in report.notes]
         parts.append("</ul></section>")
+    return parts
+
+
+def render_html(report: Report | Sequence[Report], *, version: str | None = None, title: str | None = None) -> str:
+    """The report — or several, one section each — as one HTML document (a string).
+
+    ``version`` defaults to this cmcheck's; ``title`` to the (first) report's title.
+    """
+    if version is None:
+        from .. import __version__ as version
+    reports = [report] if isinstance(report, Report) else list(report)
+    title = title if title is not None else reports[0].title
+    parts = ["<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8">',
+             f'<meta http-equiv="Content-Security-Policy" content="{CSP}">',  # our constant: no double quote
+             '<meta name="referrer" content="no-referrer">',
+             '<meta name="viewport" content="width=device-width, initial-scale=1">',
+             f"<title>{_e(title)} (cmcheck)</title>", f"<style>{_STYLE}</style></head><body>",
+             f"<header><h1>{_e(title)}</h1><p class=\"meta\">cmcheck {_e(version)}</p></header>"]
+    if len(reports) == 1:
+        parts += _sections(reports[0], "h2")
+    else:
+        for r in reports:
+            parts += [f"<article><h2>{_e(r.title)}</h2>"] + _sections(r, "h3") + ["</article>"]
     parts.append(f"<footer>Written by cmcheck {_e(version)}. Engineering estimates and measurements: "
                  "check them before relying on them.</footer></body></html>")
     return "\n".join(parts) + "\n"
 
 
-def write_html(path, report: Report) -> None:
-    """Write the report's HTML page, atomically (see :func:`render_html`)."""
-    text = render_html(report)
+def write_html(path, report: Report | Sequence[Report], *, title: str | None = None) -> None:
+    """Write the HTML page of one report or several, atomically (see :func:`render_html`)."""
+    text = render_html(report, title=title)
     atomic_write(path, lambda p: p.write_text(text, encoding="utf-8"))
