@@ -119,7 +119,7 @@ def test_predict_reports_the_parts_and_they_add_up():
     # Spreading the turns less (up to close-wound) changes Cp (Knight: the end gap sets it).
     tight = ChokeDesign(d.core, d.material, d.winding, winding_angle=math.radians(150.0))
     assert abs(tight.cp / d.cp - 1) > 0.05
-    assert "angle given" in tight.cp_source
+    assert "as given" in tight.cp_source
 
 
 SIZES_CSV = """kind,od_mm,id_mm,height_mm,width_mm,thickness_mm,length_mm,hole_mm,hole_spacing_mm

@@ -211,9 +211,9 @@ class ChokeDesign:
         parts = self.cp_parts
         if parts is None:
             return "none"
-        spread = "angle given" if self.winding_angle is not None else "default spread"
+        spread = "as given" if self.winding_angle is not None else "the default spread"
         return (f"estimated (energy method, {cp_material(self.material).describe()}, "
-                f"winding over {math.degrees(float(parts.winding_angle)):.0f}° ({spread}))")
+                f"winding over {math.degrees(float(parts.winding_angle)):.0f}°, {spread})")
 
     def conductor_resistance(self, frequency_hz) -> np.ndarray:
         """AC resistance of the conductor [Ω]; zero when its length is unknown."""

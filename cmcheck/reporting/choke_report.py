@@ -39,6 +39,13 @@ def curve_table(curve: ImpedanceCurve, comments=()) -> Table:
     return Table(CURVE_COLUMNS, tuple(rows), title="impedance", comments=comments)
 
 
+def _source_text(source: str) -> str:
+    # "estimated (energy method, …)" reads once in brackets: "estimated: energy method, …".
+    if source.startswith("estimated (") and source.endswith(")"):
+        return "estimated: " + source[len("estimated ("):-1]
+    return source
+
+
 def prediction_report(result: Prediction, rows: int = 16) -> Report:
     """Console lines, the table of ``rows`` points, the full curve, the plot and the JSON of a prediction."""
     design, band, curve, s = result.design, result.band, result.curve, result.summary
@@ -49,7 +56,7 @@ def prediction_report(result: Prediction, rows: int = 16) -> Report:
         core_info.append(f"le = {core.le * 1e3:.4g} mm, Ae = {core.ae * 1e6:.4g} mm², Ve = {format_number(core.ve * 1e9)} mm³")
     wind_info = [f"L0 = {format_quantity(design.l0, 'H')}",
                  f"L(low f) = {format_quantity(s['low_frequency_inductance_h'], 'H')}",
-                 f"Cp = {format_quantity(s['cp_f'], 'F')} ({s['cp_source']})"]
+                 f"Cp = {format_quantity(s['cp_f'], 'F')} ({_source_text(s['cp_source'])})"]
     if s["conductor_length_m"] is not None:
         wind_info.append(f"conductor {s['conductor_length_m'] * 1e3:.0f} mm + leads")
 
