@@ -198,7 +198,11 @@ def parse_length(text, *, allow_awg: bool = False) -> float:
     if m:
         if not allow_awg:
             raise UnitError(f"length {text!r}: a wire gauge is only accepted for a wire diameter")
-        return awg_diameter(_gauge_number(m.group(1) or m.group(2)))
+        n = _gauge_number(m.group(1) or m.group(2))
+        if not -3 <= n <= 46:
+            # ASTM B258 tabulates 0000 (n = −3) to 46 (0.04 mm); beyond, the formula gives no wire anyone winds.
+            raise UnitError(f"wire gauge {text.strip()!r} is outside AWG 0000 – 46 (the gauges ASTM B258 tabulates)")
+        return awg_diameter(n)
     value, suffix = _split(stripped, "length")
     if not math.isfinite(value):
         raise UnitError(f"length {text!r} is not a finite number")

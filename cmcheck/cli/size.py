@@ -12,7 +12,7 @@ import typer
 
 from ..design.compare import DEFAULT_LINE_R_MAX, DEFAULT_LINE_X_MAX, compare_designs
 from ..errors import CmcheckWarning, DesignError, UnitError
-from ..model.materials import builtin_materials, get_material
+from ..model.materials import builtin_materials, check_band, get_material
 from ..reporting.files import check_outputs
 from ..reporting.outputs import write_report
 from ..reporting.compare_report import comparison_report
@@ -161,6 +161,8 @@ def size_command(
         raise DesignError(f"{'--target-z' if target_z is not None else '--target-r'} must be positive, got {target:g} Ω")
     conductor = _conductor(wire, insulation, cable_od)
     mats = _materials(materials)
+    for m in mats:
+        check_band(m, b)
     table_ = builtin_ring_sizes() if builtin_sizes else None
     if sizes is not None:
         user = load_ring_sizes(sizes)
@@ -223,6 +225,8 @@ def compare_command(
     names = _material_names(materials)
     designs = [o.design_from_options(material=name, **design_options) for name in names]
     b = o.band_from_option(band)
+    for d in designs:
+        check_band(d.material, b)
     r_max = o.parse_option("--line-r-max", parse_resistance, line_r_max)
     x_max = o.parse_option("--line-x-max", parse_resistance, line_x_max)
     check_outputs([json_out, plot_out], _material_files(materials))
