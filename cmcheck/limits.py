@@ -56,7 +56,7 @@ def _fmt(value: float, rng: Range) -> str:
             return "0 m"
         if abs(value) >= 1:
             return f"{value:g} m"
-        return f"{value * 1e3:g} mm"
+        return f"{value * 1e3:.4g} mm"
     if rng.unit == "F":
         from .units import format_quantity
 
@@ -106,7 +106,7 @@ WIRE_DIAMETER = Range(0.127e-3 * 92.0 ** (-10 / 39), 0.127e-3 * 92.0 ** (39 / 39
 GAUGE = Range(-3, 46, "", "ASTM B258 tabulates AWG 0000 to 46")
 
 #: Radial insulation of a wire.
-INSULATION = Range(0.0, 0.01, "m", "insulation thicker than 10 mm is a cable: give its outside diameter instead")
+INSULATION = Range(0.0, 0.01, "m", "a covering thicker than 10 mm makes a cable: give the cable's outside diameter instead")
 
 #: Outside diameter of a cable wound as a choke.
 CABLE_OD = Range(1e-3, 0.1, "m", "feed lines wound through a core are between these sizes")

@@ -120,6 +120,11 @@ def extract(
     elif design_given:
         raise CmcheckError("design options (--material, --turns, …) are used only with --vs-model")
     z0_value = o.parse_option("--z0", parse_resistance, z0)
+    # Checked before any file is read: a bad option is no file's fault and writes no summary.
+    if method not in METHODS:
+        raise MeasurementError(f"method {method!r}: choose one of {', '.join(METHODS)}", parameter="method")
+    if z0_value is not None and not z0_value > 0:
+        raise MeasurementError(f"z0 must be a positive impedance, got {z0_value:g} Ω", parameter="z0")
     accuracy = Accuracy(floor_db=floor_db, max_error=_parse_percent(max_error, "--max-error"),
                         cal_error=_parse_percent(cal_error, "--cal-error", allow_zero=True))
     limits = Limits(
