@@ -11,11 +11,13 @@ import typer
 
 from ..errors import CmcheckError, MeasurementError, UnitError
 from ..measurement.methods import METHODS, Accuracy, Fixture
-from ..measurement.qa import FileResult, Limits, evaluate_files, exit_status, model_error
+from ..measurement.batch import iter_results, slim
+from ..measurement.qa import FileResult, Limits, exit_status, model_error
 from ..measurement.touchstone import read_touchstone
 from ..reporting.extraction_report import extraction_report
 from ..reporting.files import check_outputs
 from ..reporting.outputs import write_report
+from ..reporting.stream import SummaryStream, summary_row_table
 from ..units import parse_resistance
 from . import options as o
 from .flags import option_message
@@ -95,6 +97,7 @@ def extract(
     json_out: o.JsonOut = None,
     csv_out: o.CsvOut = None,
     plot_out: o.PlotOut = None,
+    jobs: Annotated[int, typer.Option("--jobs", "-j", help="Files evaluated in parallel (worker processes).", min=1, max=256, rich_help_panel=MEASURE_PANEL)] = 1,
     vs_model: Annotated[bool, typer.Option("--vs-model", help="Compare with the model of the design given by the design options.", rich_help_panel=o.DESIGN_PANEL)] = False,
     design_options: dict = None,
 ) -> None:
@@ -145,7 +148,16 @@ def extract(
         fixture = Fixture.from_sweeps(read_touchstone(open_file, z0=z0_value), read_touchstone(short_file, z0=z0_value),
                                       method, z0_value)
 
-    results = _run(paths, legs, method, z0_value, accuracy, fixture, ports, limits)
+    # The summary streams to PATH.partial as files finish and becomes PATH at the end, also on an
+    # interrupt; results the other outputs do not need are kept without their curves.
+    stream = SummaryStream(summary_out) if summary_out is not None else None
+    light = len(paths) > 1 and not (json_out or csv_out or plot_out or design is not None)
+    try:
+        results = _run(paths, legs, method, z0_value, accuracy, fixture, ports, limits, jobs=jobs,
+                       sink=(lambda r: stream.write(summary_row_table(r))) if stream else None, light=light)
+    finally:
+        if stream is not None:
+            stream.close()
     good = [r for r in results if r.error is None]
     models = {}
     if design is not None:
@@ -157,7 +169,7 @@ def extract(
     report = extraction_report(results, limits, accuracy, rows=rows, models=models, design=design,
                                more_option="--summary")
     # Files first, all or none: a closed pipe (| head) must not cost the user the results.
-    write_report(report, json=json_out, csv={"long": csv_out, "summary": summary_out}, plot=plot_out)
+    write_report(report, json=json_out, csv={"long": csv_out}, plot=plot_out)
     show(report)
     raise typer.Exit(exit_status(results))
 
@@ -169,26 +181,35 @@ def _in_options(r: FileResult) -> FileResult:
     return replace(r, error=option_message(r.error, r.error_parameter))
 
 
-def _run(paths, legs, method, z0, accuracy, fixture, ports, limits) -> list[FileResult]:
-    def report(r: FileResult) -> None:
-        if r.error:
-            print(f"error: {_in_options(r).error}", file=sys.stderr)
-
+def _run(paths, legs, method, z0, accuracy, fixture, ports, limits, *, jobs=1, sink=None,
+         light=False) -> list[FileResult]:
+    """Evaluate the files in order, streaming each result to ``sink``; ``light`` keeps summaries only."""
     n = len(paths) + (1 if legs else 0)
-    kwargs = dict(method=method, z0=z0, accuracy=accuracy, fixture=fixture, balanced_ports=ports,
-                  limits=limits, legs=legs)
+    kwargs = dict(method=method, z0=z0, accuracy=accuracy, fixture=fixture, balanced_ports=ports, limits=limits)
     from .render import err_console
 
-    if n <= 20 or not err_console.is_terminal:
-        return [_in_options(r) for r in evaluate_files(paths, on_done=report, **kwargs)]
-    from rich.progress import Progress
+    out: list[FileResult] = []
+    progress = None
+    if n > 20 and err_console.is_terminal:
+        from rich.progress import Progress
 
-    with Progress(console=err_console, transient=True) as progress:
+        progress = Progress(console=err_console, transient=True)
         task = progress.add_task("extracting", total=n)
-
-        def tick(r: FileResult) -> None:
-            progress.advance(task)
+        progress.start()
+    try:
+        for r in iter_results(paths, jobs=jobs, legs=legs, **kwargs):
+            r = _in_options(r)
             if r.error:
-                progress.console.print(f"error: {_in_options(r).error}", markup=False, highlight=False)
-
-        return [_in_options(r) for r in evaluate_files(paths, on_done=tick, **kwargs)]
+                if progress is not None:
+                    progress.console.print(f"error: {r.error}", markup=False, highlight=False)
+                else:
+                    print(f"error: {r.error}", file=sys.stderr)
+            if sink is not None:
+                sink(r)
+            out.append(slim(r) if light else r)
+            if progress is not None:
+                progress.advance(task)
+    finally:
+        if progress is not None:
+            progress.stop()
+    return out

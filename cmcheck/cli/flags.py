@@ -75,6 +75,8 @@ _TABLE = (
     Flag("floor_db", "--floor-db", "", "dB"),
     Flag("max_error", "--max-error", "", "1 (option: %)"),
     Flag("cal_error", "--cal-error", "", "1 (option: %)"),
+    Flag("jobs", "--jobs", "", ""),
+    Flag("check_standard", "--check-standard", "", ""),
     Flag("target_r", "--target-r", "results[].summary", "Ω"),
     Flag("target_z", "--target-z", "results[].summary", "Ω"),
     Flag("target_cmrr_db", "--target-cmrr", "results[].summary", "dB"),
