@@ -11,6 +11,7 @@ import typer
 
 from ..errors import CmcheckError, MeasurementError, UnitError
 from ..measurement.methods import METHODS, Accuracy, Fixture
+from ..measurement.validity import check_standard_residual
 from ..measurement.batch import iter_results, slim
 from ..measurement.qa import FileResult, Limits, exit_status, model_error
 from ..measurement.touchstone import read_touchstone
@@ -97,6 +98,7 @@ def extract(
     json_out: o.JsonOut = None,
     csv_out: o.CsvOut = None,
     plot_out: o.PlotOut = None,
+    check_standard: Annotated[Optional[Path], typer.Option("--check-standard", help="A through (2-port) or matched load (1-port) measured after calibration: its residual replaces --cal-error.", rich_help_panel=MEASURE_PANEL)] = None,
     jobs: Annotated[int, typer.Option("--jobs", "-j", help="Files evaluated in parallel (worker processes).", min=1, max=256, rich_help_panel=MEASURE_PANEL)] = 1,
     vs_model: Annotated[bool, typer.Option("--vs-model", help="Compare with the model of the design given by the design options.", rich_help_panel=o.DESIGN_PANEL)] = False,
     design_options: dict = None,
@@ -130,6 +132,12 @@ def extract(
         raise MeasurementError(f"z0 must be a positive impedance, got {z0_value:g} Ω", parameter="z0")
     accuracy = Accuracy(floor_db=floor_db, max_error=_parse_percent(max_error, "--max-error"),
                         cal_error=_parse_percent(cal_error, "--cal-error", allow_zero=True))
+    if check_standard is not None:
+        if cal_error != "1":
+            raise CmcheckError("give either --cal-error or --check-standard, not both")
+        residual, found = check_standard_residual(read_touchstone(check_standard, z0=z0_value))
+        accuracy = replace(accuracy, cal_error=residual)
+        print(f"note: {found}; used instead of the 1 % default", file=sys.stderr)
     limits = Limits(
         band=o.band_from_option(band) if band else None,
         target_r=o.parse_option("--target-r", parse_resistance, target_r),
@@ -137,7 +145,7 @@ def extract(
         target_cmrr_db=target_cmrr,
     )
     ports = _parse_ports(balanced_ports)
-    inputs = paths + [p for p in (open_file, short_file) if p] + (list(legs) if legs else [])
+    inputs = paths + [p for p in (open_file, short_file, check_standard) if p] + (list(legs) if legs else [])
     material = design_options["material"]
     if material and Path(material).is_file():
         inputs.append(material)
