@@ -99,3 +99,14 @@ def test_jobs_must_be_a_whole_number(units):
 
     with pytest.raises(MeasurementError, match="jobs"):
         list(iter_results(units, jobs=0))
+
+
+def test_long_batch_with_a_summary_lists_the_failures_on_screen(run_cli, units, tmp_path, monkeypatch):
+    import cmcheck.cli.extract as cli_extract
+
+    monkeypatch.setattr(cli_extract, "BATCH_TABLE_ROWS", 2)
+    code, out, _ = run_cli("extract", *units, "--band", "1-30MHz", "--target-r", "450", "--summary", tmp_path / "qa.csv")
+    assert code == 1
+    assert "u00.s2p" in out and "u01.s2p" in out and "u05.s2p" not in out  # failures first (200, 300 Ω < 450 Ω)
+    assert "2 of them listed" in " ".join(out.split())
+    assert len(_rows(tmp_path / "qa.csv")) == 1 + len(units)

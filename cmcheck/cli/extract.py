@@ -26,6 +26,8 @@ from .app import app
 from .render import show
 
 MEASURE_PANEL = "Measurement"
+#: Rows of a batch table on screen when every row also goes to --summary.
+BATCH_TABLE_ROWS = 50
 LIMIT_PANEL = "Limits (pass/fail)"
 
 EPILOG = """\b
@@ -175,7 +177,7 @@ def extract(
             models[r.path] = model_error(r.extraction, design.impedance(r.extraction.frequency_hz), limits.band)
 
     report = extraction_report(results, limits, accuracy, rows=rows, models=models, design=design,
-                               more_option="--summary")
+                               more_option="--summary", table_rows=BATCH_TABLE_ROWS if light and stream else None)
     # Files first, all or none: a closed pipe (| head) must not cost the user the results.
     write_report(report, json=json_out, csv={"long": csv_out}, plot=plot_out)
     show(report)
