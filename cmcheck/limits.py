@@ -90,7 +90,7 @@ def check(parameter: str, value, rng: Range, error, *, what: str | None = None) 
 
 
 #: Ring, sleeve and two-hole core dimensions.
-CORE_DIMENSION = Range(1e-3, 1.0, "m", "ferrite parts for RF chokes are made between these sizes")
+CORE_DIMENSION = Range(1e-3, 1.0, "m", "ferrite parts for RF chokes are made in this range")
 
 #: Identical cores in one stack.
 STACK = Range(1, 64, "", "beyond 64 the stack is a tube the model of one magnetic path no longer describes")
@@ -109,7 +109,7 @@ GAUGE = Range(-3, 46, "", "ASTM B258 tabulates AWG 0000 to 46")
 INSULATION = Range(0.0, 0.01, "m", "a covering thicker than 10 mm makes a cable: give the cable's outside diameter instead")
 
 #: Outside diameter of a cable wound as a choke.
-CABLE_OD = Range(1e-3, 0.1, "m", "feed lines wound through a core are between these sizes")
+CABLE_OD = Range(1e-3, 0.1, "m", "feed lines wound through a core lie in this range")
 
 #: Initial permeability of a material.
 INITIAL_PERMEABILITY = Range(1.0, 1e5, "", "no magnetic core material lies outside 1 – 1e5")

@@ -246,10 +246,9 @@ def _scalar(a):
 
 
 def _positive(name: str, value: float, parameter: str | None = None) -> float:
-    parameter = parameter or name.lower()
     if not (isinstance(value, (int, float)) and math.isfinite(value) and value > 0):
-        raise DimensionError(f"core {name} must be a positive length, got {value * 1e3:g} mm" if isinstance(value, (int, float)) else f"core {name} must be a positive length, got {value!r}", parameter=parameter)
-    return limits.check(parameter, value, limits.CORE_DIMENSION, DimensionError, what=f"{value:g} m")
+        raise DimensionError(f"core {name} must be a positive length, got {value * 1e3:g} mm" if isinstance(value, (int, float)) else f"core {name} must be a positive length, got {value!r}", parameter=parameter or name.lower())
+    return limits.check(parameter or name.lower(), value, limits.CORE_DIMENSION, DimensionError, what=f"{value:g} m")
 
 
 def _check_stack(stack) -> None:
