@@ -110,3 +110,20 @@ def test_long_batch_with_a_summary_lists_the_failures_on_screen(run_cli, units, 
     assert "u00.s2p" in out and "u01.s2p" in out and "u05.s2p" not in out  # failures first (200, 300 Ω < 450 Ω)
     assert "2 of them listed" in " ".join(out.split())
     assert len(_rows(tmp_path / "qa.csv")) == 1 + len(units)
+
+
+def test_progress_bar_appears_only_when_a_batch_takes_a_while(run_cli, units, tmp_path, monkeypatch):
+    import io
+
+    from rich.console import Console
+
+    import cmcheck.cli.extract as cli_extract
+    import cmcheck.cli.render as render
+
+    buf = io.StringIO()
+    monkeypatch.setattr(render, "err_console", Console(file=buf, force_terminal=True, width=100))
+    run_cli("extract", *units)
+    assert "extracting" not in buf.getvalue()  # a quick batch stays quiet
+    monkeypatch.setattr(cli_extract, "PROGRESS_AFTER_S", 0.0)
+    run_cli("extract", *units)
+    assert "extracting" in buf.getvalue()

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import sys
+import time
 from dataclasses import replace
 from pathlib import Path
 from typing import Annotated, Optional
@@ -28,6 +29,8 @@ from .render import show
 MEASURE_PANEL = "Measurement"
 #: Rows of a batch table on screen when every row also goes to --summary.
 BATCH_TABLE_ROWS = 50
+#: Seconds a batch runs before a progress bar appears on stderr (a terminal only).
+PROGRESS_AFTER_S = 1.0
 LIMIT_PANEL = "Limits (pass/fail)"
 
 EPILOG = """\b
@@ -199,15 +202,10 @@ def _run(paths, legs, method, z0, accuracy, fixture, ports, limits, *, jobs=1, s
     from .render import err_console
 
     out: list[FileResult] = []
-    progress = None
-    if n > 20 and err_console.is_terminal:
-        from rich.progress import Progress
-
-        progress = Progress(console=err_console, transient=True)
-        task = progress.add_task("extracting", total=n)
-        progress.start()
+    progress = task = None
+    started = time.monotonic()
     try:
-        for r in iter_results(paths, jobs=jobs, legs=legs, **kwargs):
+        for done, r in enumerate(iter_results(paths, jobs=jobs, legs=legs, **kwargs), start=1):
             r = _in_options(r)
             if r.error:
                 if progress is not None:
@@ -219,6 +217,13 @@ def _run(paths, legs, method, z0, accuracy, fixture, ports, limits, *, jobs=1, s
             out.append(slim(r) if light else r)
             if progress is not None:
                 progress.advance(task)
+            elif done < n and err_console.is_terminal and time.monotonic() - started > PROGRESS_AFTER_S:
+                # A bar only for batches that take a while: a quick run stays quiet.
+                from rich.progress import Progress
+
+                progress = Progress(console=err_console, transient=True)
+                task = progress.add_task("extracting", total=n, completed=done)
+                progress.start()
     finally:
         if progress is not None:
             progress.stop()
