@@ -31,7 +31,7 @@ print(resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss, r.returncode)
 
 
 def peak_kib(files: list[Path], summary: Path, jobs: int) -> tuple[int, int]:
-    """Peak RSS [KiB] of one ``extract`` batch (workers included when ``jobs`` > 1) and its exit status."""
+    """Peak RSS [KiB] of one ``extract`` batch (with ``jobs`` > 1: of its largest process) and its exit status."""
     cmd = [sys.executable, "-m", "cmcheck", "extract", *map(str, files), "--band", "2-50MHz", "--target-r", "1k",
            "--summary", str(summary), "--jobs", str(jobs)]
     out = subprocess.run([sys.executable, "-c", _WRAPPER, *cmd], capture_output=True, text=True, check=True)
