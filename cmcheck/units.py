@@ -151,6 +151,8 @@ def parse_quantity(text, kind: str) -> float:
         raise UnitError(f"capacitance {text!r}: 'M' is ambiguous; use p, n, u or m")
     if prefix not in _PREFIX:
         raise UnitError(f"cannot read {kind} {text!r}: unknown unit or prefix {suffix!r}")
+    if not math.isfinite(value * _PREFIX[prefix]):
+        raise UnitError(f"{kind} {text!r} is not a finite number")
     return value * _PREFIX[prefix]
 
 
@@ -198,7 +200,11 @@ def parse_length(text, *, allow_awg: bool = False) -> float:
     if m:
         if not allow_awg:
             raise UnitError(f"length {text!r}: a wire gauge is only accepted for a wire diameter")
-        return awg_diameter(_gauge_number(m.group(1) or m.group(2)))
+        n = _gauge_number(m.group(1) or m.group(2))
+        if not -3 <= n <= 46:
+            # ASTM B258 tabulates 0000 (n = −3) to 46 (0.04 mm); beyond, the formula gives no wire anyone winds.
+            raise UnitError(f"wire gauge {text.strip()!r} is outside AWG 0000 – 46 (the gauges ASTM B258 tabulates)")
+        return awg_diameter(n)
     value, suffix = _split(stripped, "length")
     if not math.isfinite(value):
         raise UnitError(f"length {text!r} is not a finite number")
@@ -211,6 +217,8 @@ def parse_length(text, *, allow_awg: bool = False) -> float:
     key = suffix if suffix in _LENGTH_UNITS else suffix.lower()
     if key not in _LENGTH_UNITS:
         raise UnitError(f"cannot read length {text!r}: unknown unit {suffix!r} (use mm, m, cm or in)")
+    if not math.isfinite(value * _LENGTH_UNITS[key]):
+        raise UnitError(f"length {text!r} is not a finite number")
     return value * _LENGTH_UNITS[key]
 
 
@@ -298,7 +306,7 @@ def _fmt_seg(lo: float, hi: float) -> str:
 
 def span_digits(lo: float, hi: float, least: int = 4) -> int:
     """Significant digits that keep ``lo`` and ``hi`` apart when printed (a narrow band needs more)."""
-    if not (hi > lo > 0):
+    if not (math.isfinite(hi) and hi > lo > 0):
         return least
     return max(least, min(12, math.ceil(math.log10(hi / (hi - lo))) + 2))
 

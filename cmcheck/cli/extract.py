@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import sys
+import time
 from dataclasses import replace
 from pathlib import Path
 from typing import Annotated, Optional
@@ -11,11 +12,15 @@ import typer
 
 from ..errors import CmcheckError, MeasurementError, UnitError
 from ..measurement.methods import METHODS, Accuracy, Fixture
-from ..measurement.qa import FileResult, Limits, evaluate_files, exit_status, model_error
+from ..measurement.validity import check_standard_residual
+from ..measurement.batch import iter_results, slim
+from ..measurement.qa import FileResult, Limits, exit_status, model_error
 from ..measurement.touchstone import read_touchstone
 from ..reporting.extraction_report import extraction_report
 from ..reporting.files import check_outputs
 from ..reporting.outputs import write_report
+from ..reporting.stream import SummaryStream, summary_row_table
+from ..reporting.winding_report import winding_estimate
 from ..units import parse_resistance
 from . import options as o
 from .flags import option_message
@@ -23,6 +28,10 @@ from .app import app
 from .render import show
 
 MEASURE_PANEL = "Measurement"
+#: Rows of a batch table on screen when every row also goes to --summary.
+BATCH_TABLE_ROWS = 50
+#: Seconds a batch runs before a progress bar appears on stderr (a terminal only).
+PROGRESS_AFTER_S = 1.0
 LIMIT_PANEL = "Limits (pass/fail)"
 
 EPILOG = """\b
@@ -100,6 +109,8 @@ def extract(
     transformer: Annotated[Optional[str], typer.Option("--transformer", help="Check a built transformer of this topology (e.g. flux-1:49): a one-port into its load resistor, or two units back to back as a two-port; SWR against --max-swr.", rich_help_panel=LIMIT_PANEL)] = None,
     max_swr: Annotated[Optional[float], typer.Option("--max-swr", help="With --transformer: pass when SWR ≤ this over the band (default 2).", rich_help_panel=LIMIT_PANEL)] = None,
     html_out: o.HtmlOut = None,
+    check_standard: Annotated[Optional[Path], typer.Option("--check-standard", help="A through (2-port) or matched load (1-port) measured after calibration: its residual replaces --cal-error.", rich_help_panel=MEASURE_PANEL)] = None,
+    jobs: Annotated[int, typer.Option("--jobs", "-j", help="Files evaluated in parallel (worker processes).", min=1, max=256, rich_help_panel=MEASURE_PANEL)] = 1,
     vs_model: Annotated[bool, typer.Option("--vs-model", help="Compare with the model of the design given by the design options.", rich_help_panel=o.DESIGN_PANEL)] = False,
     design_options: dict = None,
 ) -> None:
@@ -134,8 +145,19 @@ def extract(
     elif design_given:
         raise CmcheckError("design options (--material, --turns, …) are used only with --vs-model")
     z0_value = o.parse_option("--z0", parse_resistance, z0)
+    # Checked before any file is read: a bad option is no file's fault and writes no summary.
+    if method not in METHODS:
+        raise MeasurementError(f"method {method!r}: choose one of {', '.join(METHODS)}", parameter="method")
+    if z0_value is not None and not z0_value > 0:
+        raise MeasurementError(f"z0 must be a positive impedance, got {z0_value:g} Ω", parameter="z0")
     accuracy = Accuracy(floor_db=floor_db, max_error=_parse_percent(max_error, "--max-error"),
                         cal_error=_parse_percent(cal_error, "--cal-error", allow_zero=True))
+    if check_standard is not None:
+        if cal_error != "1":
+            raise CmcheckError("give either --cal-error or --check-standard, not both")
+        residual, found = check_standard_residual(read_touchstone(check_standard, z0=z0_value))
+        accuracy = replace(accuracy, cal_error=residual)
+        print(f"note: {found}; used instead of the 1 % default", file=sys.stderr)
     limits = Limits(
         band=o.band_from_option(band) if band else None,
         target_r=o.parse_option("--target-r", parse_resistance, target_r),
@@ -143,7 +165,7 @@ def extract(
         target_cmrr_db=target_cmrr,
     )
     ports = _parse_ports(balanced_ports)
-    inputs = paths + [p for p in (open_file, short_file) if p] + (list(legs) if legs else [])
+    inputs = paths + [p for p in (open_file, short_file, check_standard) if p] + (list(legs) if legs else [])
     material = design_options["material"]
     if material and Path(material).is_file():
         inputs.append(material)
@@ -156,7 +178,18 @@ def extract(
         fixture = Fixture.from_sweeps(read_touchstone(open_file, z0=z0_value), read_touchstone(short_file, z0=z0_value),
                                       method, z0_value)
 
-    results = _run(paths, legs, method, z0_value, accuracy, fixture, ports, limits)
+    # The summary streams to PATH.partial as files finish and becomes PATH at the end, also on an
+    # interrupt; results the other outputs do not need are kept without their curves.
+    stream = SummaryStream(summary_out) if summary_out is not None else None
+    light = len(paths) > 1 and not (json_out or csv_out or plot_out or html_out or design is not None)
+    estimates: dict = {}  # closed-form winding estimates, made before a light result drops its curve
+    try:
+        results = _run(paths, legs, method, z0_value, accuracy, fixture, ports, limits, jobs=jobs,
+                       sink=(lambda r: stream.write(summary_row_table(r))) if stream else None, light=light,
+                       estimates=estimates)
+    finally:
+        if stream is not None:
+            stream.close()
     good = [r for r in results if r.error is None]
     models = {}
     if design is not None:
@@ -166,15 +199,15 @@ def extract(
             models[r.path] = model_error(r.extraction, design.impedance(r.extraction.frequency_hz), limits.band)
 
     report = extraction_report(results, limits, accuracy, rows=rows, models=models, design=design,
-                               more_option="--summary")
+                               more_option="--summary", table_rows=BATCH_TABLE_ROWS if light and stream else None,
+                               estimates=estimates if light else None)
     extra = ()
     if spice_out is not None and good:
         from ..reporting.winding_report import spice_writer
 
         extra = (spice_writer(spice_out, good[0].extraction),)
     # Files first, all or none: a closed pipe (| head) must not cost the user the results.
-    write_report(report, json=json_out, csv={"long": csv_out, "summary": summary_out}, plot=plot_out, extra=extra,
-                 html=html_out)
+    write_report(report, json=json_out, csv={"long": csv_out}, plot=plot_out, extra=extra, html=html_out)
     show(report)
     raise typer.Exit(exit_status(results))
 
@@ -186,26 +219,39 @@ def _in_options(r: FileResult) -> FileResult:
     return replace(r, error=option_message(r.error, r.error_parameter))
 
 
-def _run(paths, legs, method, z0, accuracy, fixture, ports, limits) -> list[FileResult]:
-    def report(r: FileResult) -> None:
-        if r.error:
-            print(f"error: {_in_options(r).error}", file=sys.stderr)
-
+def _run(paths, legs, method, z0, accuracy, fixture, ports, limits, *, jobs=1, sink=None,
+         light=False, estimates=None) -> list[FileResult]:
+    """Evaluate the files in order, streaming each result to ``sink``; ``light`` keeps summaries only."""
     n = len(paths) + (1 if legs else 0)
-    kwargs = dict(method=method, z0=z0, accuracy=accuracy, fixture=fixture, balanced_ports=ports,
-                  limits=limits, legs=legs)
+    kwargs = dict(method=method, z0=z0, accuracy=accuracy, fixture=fixture, balanced_ports=ports, limits=limits)
     from .render import err_console
 
-    if n <= 20 or not err_console.is_terminal:
-        return [_in_options(r) for r in evaluate_files(paths, on_done=report, **kwargs)]
-    from rich.progress import Progress
-
-    with Progress(console=err_console, transient=True) as progress:
-        task = progress.add_task("extracting", total=n)
-
-        def tick(r: FileResult) -> None:
-            progress.advance(task)
+    out: list[FileResult] = []
+    progress = task = None
+    started = time.monotonic()
+    try:
+        for done, r in enumerate(iter_results(paths, jobs=jobs, legs=legs, **kwargs), start=1):
+            r = _in_options(r)
             if r.error:
-                progress.console.print(f"error: {_in_options(r).error}", markup=False, highlight=False)
+                if progress is not None:
+                    progress.console.print(f"error: {r.error}", markup=False, highlight=False)
+                else:
+                    print(f"error: {r.error}", file=sys.stderr)
+            if sink is not None:
+                sink(r)
+            if light and estimates is not None and r.error is None:
+                estimates[r.path] = winding_estimate(r.extraction)
+            out.append(slim(r) if light else r)
+            if progress is not None:
+                progress.advance(task)
+            elif done < n and err_console.is_terminal and time.monotonic() - started > PROGRESS_AFTER_S:
+                # A bar only for batches that take a while: a quick run stays quiet.
+                from rich.progress import Progress
 
-        return [_in_options(r) for r in evaluate_files(paths, on_done=tick, **kwargs)]
+                progress = Progress(console=err_console, transient=True)
+                task = progress.add_task("extracting", total=n, completed=done)
+                progress.start()
+    finally:
+        if progress is not None:
+            progress.stop()
+    return out

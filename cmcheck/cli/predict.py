@@ -9,7 +9,7 @@ import numpy as np
 import typer
 
 from ..model.choke import predict as predict_choke
-from ..model.materials import builtin_materials, get_material
+from ..model.materials import builtin_materials, check_band, get_material
 from ..design.heat import Drive
 from ..errors import DesignError
 from ..reporting.choke_report import prediction_report
@@ -69,6 +69,7 @@ def predict(
     """
     design = o.design_from_options(**design_options)
     b = o.band_from_option(band)
+    check_band(design.material, b)
     material = design_options["material"]
     inputs = [material] if material and Path(material).is_file() else []
     check_outputs([json_out, csv_out, plot_out, touchstone_out, html_out], inputs)
@@ -131,6 +132,7 @@ def materials(
         return
     m = get_material(name)
     b = o.band_from_option(band)
+    check_band(m, b)
     f = np.geomspace(b.low, b.high, points)
     mu = m.permeability(f)
     console.print(f"[bold]{m.name}[/bold] ({m.family}, {m.electrical_class}): {m.description}")

@@ -13,7 +13,7 @@ import typer
 
 from ..design.compare import DEFAULT_LINE_R_MAX, DEFAULT_LINE_X_MAX, compare_designs
 from ..errors import CmcheckWarning, DesignError, UnitError
-from ..model.materials import builtin_materials, get_material, search_materials
+from ..model.materials import builtin_materials, check_band, get_material, search_materials
 from ..reporting.files import check_outputs
 from ..reporting.outputs import write_report
 from ..reporting.compare_report import comparison_report
@@ -167,6 +167,8 @@ def size_command(
         raise DesignError(f"{'--target-z' if target_z is not None else '--target-r'} must be positive, got {target:g} Ω")
     conductor = _conductor(wire, insulation, cable_od)
     mats = search_materials(None if materials is None else _material_names(materials))
+    for m in mats:
+        check_band(m, b)
     table_ = builtin_ring_sizes() if builtin_sizes else None
     if sizes is not None:
         user = load_ring_sizes(sizes)
@@ -232,6 +234,8 @@ def compare_command(
     names = _material_names(materials)
     designs = [o.design_from_options(material=name, **design_options) for name in names]
     b = o.band_from_option(band)
+    for d in designs:
+        check_band(d.material, b)
     r_max = o.parse_option("--line-r-max", parse_resistance, line_r_max)
     x_max = o.parse_option("--line-x-max", parse_resistance, line_x_max)
     check_outputs([json_out, plot_out, html_out], _material_files(materials))

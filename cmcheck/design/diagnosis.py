@@ -21,6 +21,7 @@ from typing import TYPE_CHECKING, Any, Callable, Mapping, Sequence
 import numpy as np
 
 from ..model.materials import Material
+from .bend import ring_for_bend, ring_profiles
 from ..units import format_quantity
 
 if TYPE_CHECKING:  # annotations only: the search imports this module, not the reverse
@@ -249,6 +250,24 @@ def diagnose(spec: SizeSpec, closest: SizedDesign, ctx: SearchContext) -> Diagno
                          template="a tighter bend ({set} down to one cable diameter) if the cable allows it"),
                   Remedy("flexible_cable", template="a thinner, more flexible cable for the choke section"),
                   Remedy("wider_rings", "sizes", template="rings with a wider section (add them with {set})")]
+    elif bend_matters and _bend_binds(spec, ctx):
+        need = ring_for_bend(ring_profiles(spec.sizes), spec.bend_limit, cond.outer_diameter, spec.max_cores)
+        size = (f"; a ring with a section of at least {need.section * 1e3:.3g} mm would, e.g. "
+                f"{need.stack} × {need.label()} (the searched series' proportions, OD on ISO 3 R10)") if need else ""
+        reason = (f"the bend limit: a {what} may not bend tighter than {spec.bend_limit * 1e3:.3g} mm (the minimum "
+                  f"bend radius), and no searched core ({spec.sizes.series or 'the size table'}) has a section wide "
+                  f"enough for a second pass{size}")
+        limits.append("bend")
+        relax += [Remedy("wider_rings", "sizes", need.to_dict() if need else None,
+                         {"section_m": need.section} if need else {},
+                         template=(f"rings with a wider section, e.g. {need.stack} × {need.label()} (add them with {{set}})"
+                                   if need else "rings with a wider section (add them with {set})")),
+                  Remedy("tighter_bend", "min_bend_radius", cond.outer_diameter,
+                         template="a tighter bend ({set} down to one cable diameter) if the cable allows it"),
+                  Remedy("flexible_cable", template="a thinner, more flexible cable for the choke section")]
+        if by_both:
+            facts.append("even with bends allowed, the band is too wide for one choke: its low end needs more turns "
+                         "than fit and its top less stray capacitance than those turns bring")
     elif by_cores:
         reason = f"not enough core: stacks of up to {more_cores} cores would meet the target, e.g. {by_cores}"
         limits.append("cores")
@@ -291,6 +310,12 @@ def diagnose(spec: SizeSpec, closest: SizedDesign, ctx: SearchContext) -> Diagno
     relax.append(Remedy("lower_target", "target_ohm", reach, {"criterion": spec.criterion},
                         template=f"lower {{set}} to {reach:,.0f} Ω (what the closest design reaches)"))
     return Diagnosis(reason, tuple(relax), tuple(limits), tuple(facts))
+
+
+def _bend_binds(spec: SizeSpec, ctx: SearchContext) -> bool:
+    """Whether the bend limit keeps every searched core at one pass while some hole holds more."""
+    _, space = ctx.geometry(spec)
+    return space["max_turns"] <= 1 and space["stacks_bend_limited"] > 0
 
 
 def _bend_limited_text(spec: SizeSpec, ctx: SearchContext) -> str:

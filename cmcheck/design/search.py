@@ -30,6 +30,7 @@ from ..model.choke import ChokeDesign, air_core_inductance, choke_impedance, pre
 from ..model.winding_cp import candidates_cp, cp_material, unknown_class_message
 from ..model.conductors import Conductor
 from ..model.cores import Core
+from .. import limits
 from ..errors import CmcheckWarning, DesignError
 from ..model.materials import Material, purchase_label
 from .catalogue import CoreSizes, RingSizes, bend_radius, builtin_ring_sizes, load_ring_sizes
@@ -149,6 +150,7 @@ class SizeSpec:
             raise DesignError("sizes: the table of core sizes is empty", parameter="sizes")
         if not (isinstance(self.max_cores, (int, np.integer)) and self.max_cores >= 1):
             raise DesignError(f"max_cores must be a whole number ≥ 1, got {self.max_cores!r}", parameter="max_cores")
+        limits.check("max_cores", int(self.max_cores), limits.STACK, DesignError)
         if self.max_turns is not None and not (isinstance(self.max_turns, (int, np.integer)) and self.max_turns >= 1):
             raise DesignError(f"max_turns must be a whole number ≥ 1, got {self.max_turns!r}", parameter="max_turns")
         if self.min_bend_radius is not None and not (math.isfinite(self.min_bend_radius) and self.min_bend_radius >= 0):

@@ -23,6 +23,7 @@ import numpy as np
 from .balance import Balance, common_mode_series_z, four_port_balance, legs_balance, three_port_balance
 from ..curve import ImpedanceCurve
 from ..errors import CmcheckWarning, MeasurementError, TouchstoneError
+from .evidence import method_doubts
 from .touchstone import SParameters
 from .validity import Accuracy, Validity, balance_validity, impedance_validity, reflection_error, through_error
 
@@ -340,6 +341,8 @@ def extract(
     if balanced_ports is not None:
         raise MeasurementError(f"{sweep.source}: balanced_ports applies to 3- and 4-port files only", parameter="balanced_ports")
     n, eps, tol = accuracy.noise, accuracy.cal_error, accuracy.max_error
+    for doubt in method_doubts(sweep, m, eps):
+        warnings.warn(CmcheckWarning(doubt, parameter="method"), stacklevel=2)
     if m == "reflect":
         s = sweep.param(1, 1)
         z = reflection_z(s, z0)

@@ -11,12 +11,13 @@ from __future__ import annotations
 
 import math
 import os
+import warnings
 from dataclasses import dataclass, field
 from typing import Callable, Iterable, Sequence
 
 import numpy as np
 
-from ..errors import CmcheckError, MeasurementError
+from ..errors import CmcheckError, CmcheckWarning, MeasurementError
 from .methods import Accuracy, Extraction, Fixture, extract, extract_legs
 from .touchstone import read_touchstone
 from ..units import Band, format_quantity
@@ -155,6 +156,13 @@ def summarize(ex: Extraction, limits: Limits = Limits()) -> Summary:
         out["max_amplitude_imbalance_db"] = float(np.max(amp)) if amp.size else None
         out["max_phase_imbalance_deg"] = float(np.max(ph)) if ph.size else None
     passed, verdict = None, ""
+    n_in = int(in_band.sum())
+    if n_in and not ok.any() and not limits.any:
+        # Figures from no trusted point would be read as a result; without a limit no verdict says
+        # so (with one, the verdict judges such points by their error bounds).
+        reasons = ", ".join(f"{k.replace('_', ' ')} {n}" for k, n in ex.validity.subset(in_band).excluded().items())
+        warnings.warn(CmcheckWarning(f"{ex.source}: no valid point in the band: all {n_in} in-band point(s) excluded "
+                                     f"({reasons}); none of its figures can be trusted"), stacklevel=2)
     if limits.any:
         passed, verdict = _verdict(ex, limits, out, int(ok.sum()), f, in_band & ~ex.valid)
     return Summary(

@@ -16,7 +16,8 @@ import numpy as np
 from .balance import Balance
 from ..errors import MeasurementError
 
-__all__ = ["Accuracy", "Validity", "balance_validity", "impedance_validity", "reflection_error", "through_error"]
+__all__ = ["Accuracy", "Validity", "balance_validity", "check_standard_residual", "impedance_validity",
+           "reflection_error", "through_error"]
 
 
 def through_error(s21, cal_error, noise):
@@ -268,3 +269,64 @@ def balance_validity(bal: Balance, used: np.ndarray, accuracy: Accuracy) -> Vali
     noisy = (beyond & (err_n >= err - err_n)) | weak
     active = np.any(np.abs(used) > 1.0, axis=0)
     return Validity(err, noisy, beyond & ~noisy, active)
+
+
+#: The share of a check standard's points the residual must cover (the worst 5 % are taken as
+#: outliers: a glitch or a connector touched mid-sweep).
+CHECK_STANDARD_QUANTILE = 0.95
+
+
+def check_standard_residual(sweep) -> tuple[float, str]:
+    """Residual calibration error seen on a check standard measured after calibration.
+
+    Parameters
+    ----------
+    sweep : cmcheck.measurement.touchstone.SParameters
+        A two-port *through* (ideal S21 = 1, S11 = S22 = 0) or a one-port *matched load* of the
+        reference impedance (ideal S11 = 0), measured right after calibrating.
+
+    Returns
+    -------
+    (float, str)
+        The residual [dimensionless]: the 95th percentile over the sweep of the worst deviation
+        from the ideal per point (|S21 − 1| and |S11|, |S22| where measured); and a one-line
+        account of what was found.
+
+    Raises
+    ------
+    MeasurementError
+        When the file is not such a standard (more than two ports, no S21 in a two-port) or its
+        residual is 50 % or more (not a through or a load at all).
+
+    References
+    ----------
+    Keysight, *Impedance Measurement Handbook*, 6th ed., 2016, §4.2 (verifying a calibration
+    on a known standard). The 95th percentile is common practice, no published source.
+    """
+    src = sweep.source
+    if sweep.n_ports == 1:
+        dev = np.abs(sweep.param(1, 1))
+        what = "matched load: |S11|"
+    elif sweep.n_ports == 2:
+        if sweep.is_placeholder(2, 1):
+            raise MeasurementError(f"{src}: a check standard of two ports must be a through with S21 measured",
+                                   parameter="check_standard")
+        parts = [np.abs(sweep.param(2, 1) - 1.0)]
+        names = ["|S21 − 1|"]
+        for i in (1, 2):
+            if not sweep.is_placeholder(i, i):
+                parts.append(np.abs(sweep.param(i, i)))
+                names.append(f"|S{i}{i}|")
+        dev = np.max(np.vstack(parts), axis=0)
+        what = "through: " + ", ".join(names)
+    else:
+        raise MeasurementError(f"{src}: a check standard is a one-port load or a two-port through, "
+                               f"not a {sweep.n_ports}-port file", parameter="check_standard")
+    residual = float(np.quantile(dev, CHECK_STANDARD_QUANTILE))
+    if not residual < 0.5:
+        raise MeasurementError(f"{src}: deviates from an ideal {what.split(':')[0]} by {residual:.2g} "
+                               f"(95 % of points); that is no calibrated standard", parameter="check_standard")
+    worst = int(np.argmax(dev))
+    text = (f"calibration residual from the check standard {src} ({what}): {residual * 100:.2g} % "
+            f"(95 % of {dev.size} points; worst {dev[worst] * 100:.2g} % at {sweep.frequency_hz[worst]:.4g} Hz)")
+    return residual, text

@@ -13,6 +13,7 @@ from typing import Protocol, runtime_checkable
 
 import numpy as np
 
+from .. import limits
 from ..errors import DimensionError
 
 __all__ = [
@@ -164,9 +165,11 @@ class Wire:
 
     def __post_init__(self) -> None:
         if not (math.isfinite(self.diameter) and self.diameter > 0):
-            raise DimensionError(f"wire diameter must be positive, got {self.diameter!r} m")
+            raise DimensionError(f"wire diameter must be positive, got {self.diameter!r} m", parameter="wire")
         if not (math.isfinite(self.insulation) and self.insulation >= 0):
-            raise DimensionError(f"insulation thickness must be ≥ 0, got {self.insulation!r} m")
+            raise DimensionError(f"insulation thickness must be ≥ 0, got {self.insulation!r} m", parameter="insulation")
+        limits.check("wire", self.diameter, limits.WIRE_DIAMETER, DimensionError)
+        limits.check("insulation", self.insulation, limits.INSULATION, DimensionError)
 
     @property
     def outer_diameter(self) -> float:
@@ -220,7 +223,8 @@ class Cable:
 
     def __post_init__(self) -> None:
         if not (math.isfinite(self.od) and self.od > 0):
-            raise DimensionError(f"cable OD must be positive, got {self.od!r} m")
+            raise DimensionError(f"cable OD must be positive, got {self.od!r} m", parameter="cable_od")
+        limits.check("cable_od", self.od, limits.CABLE_OD, DimensionError)
         j = 0.12 * self.od if self.jacket is None else self.jacket
         if not (math.isfinite(j) and 0 <= j < self.od / 2):
             raise DimensionError(f"cable jacket must be between 0 and half the OD, got {j!r} m")

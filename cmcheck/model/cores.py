@@ -16,6 +16,7 @@ from typing import Protocol, runtime_checkable
 
 import numpy as np
 
+from .. import limits
 from ..errors import DimensionError
 from .capacitance import RingSection, TurnGeometry, TurnSegment
 
@@ -244,15 +245,16 @@ def _scalar(a):
     return float(a) if a.ndim == 0 else a
 
 
-def _positive(name: str, value: float) -> float:
+def _positive(name: str, value: float, parameter: str | None = None) -> float:
     if not (isinstance(value, (int, float)) and math.isfinite(value) and value > 0):
-        raise DimensionError(f"core {name} must be a positive length, got {value * 1e3:g} mm" if isinstance(value, (int, float)) else f"core {name} must be a positive length, got {value!r}")
-    return float(value)
+        raise DimensionError(f"core {name} must be a positive length, got {value * 1e3:g} mm" if isinstance(value, (int, float)) else f"core {name} must be a positive length, got {value!r}", parameter=parameter or name.lower())
+    return limits.check(parameter or name.lower(), value, limits.CORE_DIMENSION, DimensionError, what=f"{value:g} m")
 
 
 def _check_stack(stack) -> None:
     if isinstance(stack, bool) or not isinstance(stack, (int, np.integer)) or stack < 1:
-        raise DimensionError(f"number of stacked cores must be a whole number ≥ 1, got {stack!r}")
+        raise DimensionError(f"number of stacked cores must be a whole number ≥ 1, got {stack!r}", parameter="cores")
+    limits.check("cores", int(stack), limits.STACK, DimensionError)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -418,11 +420,13 @@ class FactorCore:
 
     def __post_init__(self) -> None:
         if not (isinstance(self.c1, (int, float)) and math.isfinite(self.c1) and self.c1 > 0):
-            raise DimensionError(f"core factor Σl/A must be positive, got {self.c1!r} 1/m")
+            raise DimensionError(f"core factor Σl/A must be positive, got {self.c1!r} 1/m", parameter="core_factor")
         for name in ("window_diameter", "ae", "le", "turn_path"):
             v = getattr(self, name)
             if v is not None and not (math.isfinite(v) and v > 0):
-                raise DimensionError(f"core {name} must be positive, got {v!r}")
+                raise DimensionError(f"core {name} must be positive, got {v!r}", parameter="window" if name == "window_diameter" else None)
+        if self.window_diameter is not None:
+            limits.check("window", self.window_diameter, limits.CORE_DIMENSION, DimensionError)
         _check_stack(self.stack)
 
     @property

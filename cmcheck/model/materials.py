@@ -14,7 +14,8 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import MaterialError
+from .. import limits
+from ..errors import CmcheckWarning, MaterialError, UnitError
 from ..tables import read_table
 from .dispersion import (
     DampedResonance,
@@ -43,6 +44,7 @@ __all__ = [
     "get_material",
     "load_material_csv",
     "purchase_label",
+    "check_band",
     "save_material_csv",
     "search_materials",
     "two_component_permeability",
@@ -85,6 +87,20 @@ class Tabulated:
         if np.any(mpp < 0):
             raise MaterialError(
                 f"{self.source}: mu_double_prime must be ≥ 0 (µ = µ' − jµ'' for a passive material)"
+            )
+        big = np.flatnonzero(np.hypot(mp, mpp) > limits.MAX_PERMEABILITY)
+        if big.size:
+            i = int(big[0])
+            raise MaterialError(
+                f"{self.source}: |µ| = {np.hypot(mp[i], mpp[i]):.4g} at {f[i]:.4g} Hz is above {limits.MAX_PERMEABILITY:g} "
+                f"(no magnetic core material reaches it; a unit or column mix-up?)"
+            )
+        if not limits.INITIAL_PERMEABILITY.contains(float(mp[0])):
+            # µ' may turn negative above a resonance, but not where the table starts: that is µi.
+            raise MaterialError(
+                f"{self.source}: mu_prime = {mp[0]:.4g} at the lowest frequency {f[0]:.4g} Hz is outside "
+                f"{limits.INITIAL_PERMEABILITY.text()} ({limits.INITIAL_PERMEABILITY.why}; µ' may be negative "
+                f"only above a resonance)"
             )
         for name, arr in (("frequency_hz", f), ("mu_prime", mp), ("mu_double_prime", mpp)):
             arr.setflags(write=False)
@@ -368,3 +384,48 @@ def get_material(name_or_path: str) -> Material:
         return load_material_csv(key)
     fams = ", ".join(f"{f.key}-<µi> ({f.mu_range[0]:g}–{f.mu_range[1]:g})" for f in builtin_families().values())
     raise MaterialError(f"unknown material {key!r}: use a family member {fams}, or a CSV file (frequency_hz,mu_prime,mu_double_prime)")
+
+
+def check_band(material: Material, band) -> None:
+    """Refuse a band the material cannot speak for; warn when a table is stretched at its ends.
+
+    A tabulated material is used up to :data:`EXTRAPOLATION_RATIO` beyond its ends (holding the
+    end value), with a warning naming the stretched range; further out is refused. An analytic
+    (family) model is refused outside :data:`cmcheck.limits.ANALYTIC_BAND`.
+
+    Parameters
+    ----------
+    material : Material
+    band : cmcheck.units.Band
+        Frequencies asked for [Hz].
+
+    Raises
+    ------
+    UnitError
+        With ``parameter="band"``, naming the band, the usable range and why.
+    """
+    import warnings
+
+    from ..units import format_quantity
+
+    lo, hi = band.low, band.high
+    if not isinstance(material.model, Tabulated):
+        rng = limits.ANALYTIC_BAND
+        if not (rng.contains(lo) and rng.contains(hi)):
+            raise UnitError(f"band {band} is outside {rng.text()} for {material.name} ({rng.why})", parameter="band")
+        return
+    f0, f1 = material.model.frequency_hz[0], material.model.frequency_hz[-1]
+    r0, r1 = material.model.range_hz
+    if lo < r0 * (1 - 1e-12) or hi > r1 * (1 + 1e-12):
+        raise UnitError(
+            f"band {band} reaches beyond {material.name}'s data ({format_quantity(f0, 'Hz')} – "
+            f"{format_quantity(f1, 'Hz')}, used up to ×{EXTRAPOLATION_RATIO:g} beyond its ends)",
+            parameter="band",
+        )
+    stretched = [f"{format_quantity(lo, 'Hz')} – {format_quantity(f0, 'Hz')}"] if lo < f0 * (1 - 1e-12) else []
+    if hi > f1 * (1 + 1e-12):
+        stretched.append(f"{format_quantity(f1, 'Hz')} – {format_quantity(hi, 'Hz')}")
+    if stretched:
+        warnings.warn(CmcheckWarning(
+            f"{material.name}: µ is extrapolated (held at the table's end value) over {' and '.join(stretched)}, "
+            f"beyond the data {format_quantity(f0, 'Hz')} – {format_quantity(f1, 'Hz')}", parameter="band"), stacklevel=2)

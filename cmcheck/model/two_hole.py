@@ -88,7 +88,7 @@ class TwoHoleCore:
 
     def __post_init__(self) -> None:
         for name in ("width", "thickness", "length", "hole", "spacing"):
-            _positive(name, getattr(self, name))
+            _positive(name, getattr(self, name), "hole_spacing" if name == "spacing" else name)
         if self.hole >= self.spacing:
             raise DimensionError(
                 f"two-hole core: hole diameter ({self.hole * 1e3:g} mm) must be smaller than the hole spacing "

@@ -13,7 +13,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .. import limits
 from ..errors import CmcheckWarning, WindingError
+from ..units import format_quantity
 from .capacitance import EPS0, stray_capacitance, turn_to_turn_capacitance
 from .conductors import (
     COPPER_RESISTIVITY,
@@ -98,9 +100,11 @@ class Winding:
 
     def __post_init__(self) -> None:
         if isinstance(self.turns, bool) or not isinstance(self.turns, (int, np.integer)) or self.turns < 1:
-            raise WindingError(f"turns must be a whole number ≥ 1, got {self.turns!r}")
+            raise WindingError(f"turns must be a whole number ≥ 1, got {self.turns!r}", parameter="turns")
         if self.cp is not None and not (math.isfinite(self.cp) and self.cp >= 0):
-            raise WindingError(f"stray capacitance must be ≥ 0, got {self.cp!r} F")
+            raise WindingError(f"stray capacitance must be ≥ 0, got {self.cp!r} F", parameter="cp")
+        if self.cp is not None:
+            limits.check("cp", self.cp, limits.CP, WindingError, what=format_quantity(self.cp, "F", 4))
         if not (math.isfinite(self.lead_length) and self.lead_length >= 0):
             raise WindingError(f"lead length must be ≥ 0, got {self.lead_length!r} m")
 

@@ -69,6 +69,8 @@ def extraction_report(
     models: Mapping[str, dict] | None = None,
     design=None,
     more_option: str = "the summary file",
+    table_rows: int | None = None,
+    estimates: Mapping[str, object] | None = None,
 ) -> Report:
     """The report of an extraction: one file in detail, or a batch.
 
@@ -85,17 +87,24 @@ def extraction_report(
         The modelled design (JSON ``model``, plot overlay).
     more_option : str
         Where the full list of failures is, named in the batch summary.
+    table_rows : int, optional
+        Longest batch table on screen (failed and unreadable files first), for batches whose
+        rows all go to a summary file; None lists every file.
+    estimates : mapping of path to winding estimate, optional
+        Closed-form L, Cp, R of each impedance made before its curve was dropped
+        (:func:`cmcheck.measurement.batch.slim`); by default made here from each result.
     """
     models = dict(models or {})
     good = [r for r in results if r.error is None]
-    estimates = {r.path: winding_estimate(r.extraction) for r in good}
+    estimates = {r.path: (estimates[r.path] if estimates is not None else winding_estimate(r.extraction))
+                 for r in good}
     if len(results) == 1 and good:
         body = _one(good[0], accuracy, rows, models.get(good[0].path))
         line = estimate_text(estimates[good[0].path])
         if line is not None:
             body.insert(len(body) - (good[0].summary.passed is not None), line)
     elif good:
-        body = _batch(results, limits, models, more_option)
+        body = _batch(results, limits, models, more_option, table_rows)
         body += estimates_table(list(estimates), list(estimates.values()))
     else:
         body = []
@@ -185,7 +194,8 @@ def _one(r: FileResult, accuracy: Accuracy, rows: int, model: dict | None) -> li
     return body
 
 
-def _batch(results: Sequence[FileResult], limits: Limits, models: dict, more_option: str) -> list:
+def _batch(results: Sequence[FileResult], limits: Limits, models: dict, more_option: str,
+           table_rows: int | None = None) -> list:
     any_z = any(r.extraction is not None and r.extraction.curve is not None for r in results)
     any_b = any(r.extraction is not None and r.extraction.balance is not None for r in results)
     cols = [Column("file", "file"), Column("method", "method"), Column("valid", "valid")]
@@ -213,12 +223,20 @@ def _batch(results: Sequence[FileResult], limits: Limits, models: dict, more_opt
             row += [(models.get(r.path) or {}).get("impedance_error_median_pct")]
         row.append(_verdict(s) or "–")
         rows.append(tuple(row))
+    listed = ""
+    if table_rows is not None and len(rows) > table_rows:
+        # A long batch's rows are all in the summary file; the screen shows the ones that need a look.
+        bad = [i for i, r in enumerate(results) if r.error or (r.summary is not None and r.summary.passed is False)]
+        flagged = set(bad)
+        keep = sorted((bad + [i for i in range(len(rows)) if i not in flagged])[:table_rows])
+        rows = [rows[i] for i in keep]
+        listed = f" ({len(rows)} of them listed, failed and unreadable first; all in {more_option})"
     body: list = [Table(tuple(cols), tuple(rows), fold_first=True)]
     n_err = sum(1 for r in results if r.error)
     n_fail = sum(1 for r in results if r.summary is not None and r.summary.passed is False)
     n_pass = sum(1 for r in results if r.summary is not None and r.summary.passed)
     band = "the whole sweep" if limits.band is None else str(limits.band)
-    line = f"{len(results)} files, summaries over {band} from valid points only"
+    line = f"{len(results)} files{listed}, summaries over {band} from valid points only"
     if limits.any:
         line += f": {n_pass} pass, {n_fail} fail"
     if n_err:
