@@ -14,6 +14,8 @@ import pytest
 
 from cmcheck.demo import INVENTED, data_dir, data_files
 
+pytestmark = pytest.mark.endtoend
+
 PARTS = ("feedline-choke", "supply-lead", "balun-4to1", "member-chokes", "drawer-core")
 
 
