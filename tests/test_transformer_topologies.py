@@ -15,7 +15,7 @@ from cmcheck.model.materials import get_material
 from cmcheck.model.winding import Wire
 from cmcheck.transformer.analysis import analyse, design_network
 from cmcheck.transformer.loads import Load
-from cmcheck.transformer.topologies import TOPOLOGIES, parse_topology
+from cmcheck.transformer.topologies import TOPOLOGIES, load_topology, parse_topology
 from cmcheck.transformer.windings import IdealLine, LineWinding
 from cmcheck.units import awg_diameter
 
@@ -325,3 +325,55 @@ def test_one_core_guanella_4to1():
     # ... while wound in the same sense those fluxes cancel and the load is shorted.
     same = dataclasses.replace(one, lines=(LineElement(one.lines[0].end1, one.lines[0].end2, "same"),))
     assert abs(analyse(same, lo, w, Load.resistor(200.0)).zin[0]) < 5.0
+
+
+# --- the topology reader never fails with a traceback (a fuzz corpus of our own) ----------------
+
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+from cmcheck.errors import CmcheckError  # noqa: E402
+
+_NODES = st.sampled_from(["in", "out", "gnd", "a", "b", "", "in ", 1, None])
+_LINE = st.fixed_dictionaries({}, optional={"end1": st.lists(_NODES, max_size=3), "end2": st.lists(_NODES, max_size=3),
+                                            "conductors": st.integers(-2, 5), "core": st.integers(-1, 3)})
+
+
+def _toml_value(v) -> str:
+    if isinstance(v, str):
+        return '"' + v.replace("\\", "\\\\").replace('"', '\\"') + '"'
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    if isinstance(v, list):
+        return "[" + ", ".join(_toml_value(x) for x in v if x is not None) + "]"
+    return repr(v)
+
+
+@settings(max_examples=150, deadline=None)
+@given(name=st.one_of(st.text(max_size=8), st.integers()), ratio=st.one_of(st.integers(-3, 50), st.floats(allow_nan=True),
+       st.text(max_size=3)), outputs=st.lists(_NODES, max_size=3), lines=st.lists(_LINE, max_size=3),
+       extra=st.sampled_from(["", "colour = 1\n", "input = 'in'\n", "[[line]]\n"]))
+def test_topology_reader_returns_a_topology_or_one_error(name, ratio, outputs, lines, extra):
+    # Structured TOML near the schema (DEVELOPERS.md, "adding a transformer topology").
+    text = f"name = {_toml_value(name)}\nratio = {_toml_value(ratio) if ratio == ratio else 'nan'}\n"
+    text += f"outputs = {_toml_value(outputs)}\n{extra}"
+    for line in lines:
+        text += "[[line]]\n" + "".join(f"{k} = {_toml_value(v)}\n" for k, v in line.items())
+    try:
+        parse_topology(text, "fuzz.toml")
+    except CmcheckError as exc:
+        assert "\n" not in str(exc) and "fuzz.toml" in str(exc)
+
+
+@settings(max_examples=150, deadline=None)
+@given(st.text(max_size=200))
+def test_topology_reader_survives_any_text(text):
+    try:
+        parse_topology(text, "fuzz.toml")
+    except CmcheckError as exc:
+        assert "\n" not in str(exc)
+
+
+def test_topology_file_must_be_a_regular_file(tmp_path):
+    with pytest.raises(CmcheckError, match="regular file"):
+        load_topology(tmp_path)

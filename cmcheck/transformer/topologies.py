@@ -166,11 +166,15 @@ def get_topology(name_or_path) -> Topology:
 
 def load_topology(path) -> Topology:
     """Read a topology TOML file (schema: DEVELOPERS.md, "adding a transformer topology")."""
+    from ..inputs import read_capped
+
     p = Path(path)
+    # A topology is a few dozen lines: 1 MiB is far more than any real one.
+    data = read_capped(p, str(p), TransformerError, cap=1 << 20)
     try:
-        text = p.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise TransformerError(f"{p}: cannot read topology file ({exc.__class__.__name__})") from None
+        text = data.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        raise TransformerError(f"{p}: cannot be read (not UTF-8 text)", parameter="topology") from None
     return parse_topology(text, str(p))
 
 
