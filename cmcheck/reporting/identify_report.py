@@ -100,7 +100,8 @@ def identify_report(ident, *, core_text: str, method: str, rows: int = 12, circu
     doc = ident.to_dict()
     if circuit is not None:
         doc["equivalent_circuit"] = circuit.to_dict()
-    return Report("identify", body, doc, inputs={"file": ident.source, "core": core_text, "turns": ident.turns},
+    title = f"Identification of {ident.source}: {ident.turns:g} turns on {core_text}"
+    return Report(title, body, doc, inputs={"file": ident.source, "core": core_text, "turns": ident.turns},
                   figures=(figure,), notes=tuple(notes))
 
 
