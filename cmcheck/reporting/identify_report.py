@@ -106,11 +106,11 @@ def identify_report(ident, *, core_text: str, method: str, rows: int = 12, circu
 
 
 def write_identify_outputs(report: Report, ident, *, json=None, plot=None, material=None, spice=None,
-                           circuit=None, spice_name: str = "winding") -> None:
+                           circuit=None, spice_name: str = "winding", html=None) -> None:
     """Write the asked files of an identification all together or none.
 
     ``material``: the whole-band material CSV (:meth:`Identification.save_material_csv`);
-    ``spice``: ``circuit`` as a SPICE subcircuit.
+    ``spice``: ``circuit`` as a SPICE subcircuit; ``html``: the offline HTML page of the report.
     """
     from ..identify.circuit import write_spice
     from .files import staged_outputs, write_json
@@ -121,6 +121,10 @@ def write_identify_outputs(report: Report, ident, *, json=None, plot=None, mater
             write_json(json, report.json)
         if plot:
             plot_figure(plot, report.figures[0])
+        if html:
+            from .html import write_html
+
+            write_html(html, report)
         if material:
             ident.save_material_csv(material)
         if spice:
