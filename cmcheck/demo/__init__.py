@@ -118,7 +118,7 @@ def _balun() -> Part:
     # --power 100W --points 61` computes, through the same library calls and report.
     band = Band.single(1.8e6, 30e6)
     topology = TOPOLOGIES["guanella-4:1"]
-    design = ChokeDesign(RingCore(36e-3, 23e-3, 12.5e-3), get_material("nizn-250"), Winding(8, Wire(1.6e-3, 0.25e-3, 2.1)))
+    design = ChokeDesign(RingCore(36e-3, 23e-3, 12.5e-3), get_material("nizn-250"), Winding(8, Wire(1.6e-3, 0.25e-3)))
     spec = LineWinding(design.core, design.material, design.winding.turns, design.winding.conductor, topology.conductors)
     # The feed line's legs see the antenna's unequal capacitance to ground: an unbalanced load.
     load = Load.resistor(200.0, leg_p=1000.0, leg_n=1500.0)
