@@ -97,8 +97,8 @@ KEYS: tuple[Key, ...] = (
     Key("winding.cp", "capacitance", "F", "cp"),
     Key("target.resistance_ohm", "resistance", "Ω", "target_r"),
     Key("target.impedance_ohm", "resistance", "Ω", "target_z"),
-    Key("target.swr", "ratio", "", "swr"),
-    Key("load.resistance_ohm", "resistance", "Ω", "load_resistance"),
+    Key("target.swr", "ratio", "", "max_swr"),
+    Key("load.resistance_ohm", "resistance", "Ω", "load"),
 )
 _BY_NAME = {k.name: k for k in KEYS}
 _TABLES = sorted({k.name.split(".")[0] for k in KEYS if "." in k.name})
@@ -137,8 +137,8 @@ class DesignFile:
         """The value as the command line would take it: counts as int, the rest as text with a unit."""
         v = self.values[key]
         k = _BY_NAME[key]
-        if k.kind == "count":
-            return v
+        if k.kind == "count" or k.kind == "ratio":
+            return v  # whole numbers and plain ratios (swr) are typed options, not text
         if k.kind in _KINDS and key not in self.texts:
             return f"{v!r}{_KINDS[k.kind][0].replace('Ω', '')}"
         return self.texts.get(key, str(v))

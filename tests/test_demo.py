@@ -128,3 +128,23 @@ def test_index_page_when_the_html_renderer_is_missing(tmp_path, monkeypatch):
     assert [p.name for p in written] == ["x.json", "index.html"]
     page = (tmp_path / "index.html").read_text(encoding="utf-8")
     assert "&lt;b&gt;question&lt;/b&gt;?" in page and '<a href="x.json">' in page
+
+
+BALUN = ["transformer", "--topology", "guanella-4:1", "--material", "nizn-250", "--od", "36mm", "--id", "23mm",
+         "--height", "12.5mm", "--turns", "8", "--wire", "1.6mm", "--insulation", "0.25mm", "--load", "200",
+         "--leg-to-ground", "1k,1.5k", "--power", "100W", "--points", "61", "--rows", "8"]
+DRAWER = ["identify", "club/drawer-core.s1p", "--od", "23mm", "--id", "14mm", "--height", "7.5mm", "--turns", "10",
+          "--rows", "8"]
+
+
+@pytest.mark.parametrize("part, command", [("c", BALUN), ("e", DRAWER)])
+def test_balun_and_drawer_core_are_what_the_commands_print(run_cli, demo_run, monkeypatch, part, command):
+    # The demo's parts are the commands' own reports: its console section (after the question
+    # and the INVENTED line) is the command's output, number for number.
+    _, out, _, folder = demo_run
+    monkeypatch.chdir(folder.parent)
+    section = out.split(f"[{part}] ", 1)[1].split("\n[", 1)[0].split("\nwrote into", 1)[0]
+    shown = section.split("\n", 2)[2]
+    assert section.split("\n")[1] == INVENTED
+    code, printed, _ = run_cli(*command)
+    assert code == 0 and shown.rstrip("\n") == printed.rstrip("\n")

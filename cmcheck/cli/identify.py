@@ -28,6 +28,7 @@ with --material (-m); --spice writes the winding's fitted equivalent circuit.
 
 
 @app.command(epilog=EPILOG)
+@o.with_design_file
 def identify(
     file: Annotated[Path, typer.Argument(help="Touchstone sweep of a winding on the unknown core.", show_default=False)],
     od: o.OD = None,
@@ -54,6 +55,7 @@ def identify(
     spice: Annotated[Optional[Path], typer.Option("--spice", help="Write the winding's fitted equivalent circuit as a SPICE subcircuit.", rich_help_panel=o.OUTPUT_PANEL)] = None,
     json_out: o.JsonOut = None,
     plot_out: Annotated[Optional[Path], typer.Option("--plot", help="Plot measured and fitted µ', µ'' to this PNG file.", rich_help_panel=o.OUTPUT_PANEL)] = None,
+    html_out: o.HtmlOut = None,
 ) -> None:
     """Identify an unknown core: µ(f), the winding's Cp and self-resonance, a fitted model.
 
@@ -63,7 +65,7 @@ def identify(
     from ..identify import identify as run_identify
 
     if turns is None:
-        raise CmcheckError("--turns is required")
+        raise o.missing("--turns")
     if turns < 1:
         raise CmcheckError(f"--turns must be a whole number ≥ 1, got {turns}")
     if method not in ("auto", "reflect", "series", "shunt"):
@@ -75,7 +77,7 @@ def identify(
     z0_value = o.parse_option("--z0", parse_resistance, z0)
     accuracy = Accuracy(floor_db=floor_db, max_error=_parse_percent(max_error, "--max-error"),
                         cal_error=_parse_percent(cal_error, "--cal-error", allow_zero=True))
-    check_outputs([json_out, plot_out, save_material, spice], [file] + [p for p in (open_file, short_file) if p])
+    check_outputs([json_out, plot_out, save_material, spice, html_out], [file] + [p for p in (open_file, short_file) if p])
     fixture = None
     if open_file is not None:
         fixture = Fixture.from_sweeps(read_touchstone(open_file, z0=z0_value), read_touchstone(short_file, z0=z0_value),
@@ -90,5 +92,5 @@ def identify(
         circuit = fit_circuit(c.frequency_hz, c.z, c.valid)
     report = identify_report(ident, core_text=core.describe(), method=ex.method, rows=rows, circuit=circuit)
     write_identify_outputs(report, ident, json=json_out, plot=plot_out, material=save_material, spice=spice,
-                           circuit=circuit)
+                           circuit=circuit, html=html_out)
     show(report)

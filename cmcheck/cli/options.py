@@ -21,6 +21,7 @@ from ..model.two_hole import TwoHoleCore
 from ..designfile import DesignFile, load_design
 from ..errors import CmcheckError, UnitError
 from ..model.materials import get_material
+from ..reporting.files import check_outputs
 from ..units import Band, parse_band, parse_capacitance, parse_length, parse_wire_diameter
 from ..model.winding import Cable, Winding, Wire
 
@@ -283,7 +284,7 @@ DESIGN_FILE_KEYS: dict[str, str] = {
     **{n: f"core.{n}" for n in ("od", "id", "height", "cores", "core_factor", "window", "width", "thickness",
                                 "length", "hole", "hole_spacing")},
     **{n: f"winding.{n}" for n in ("turns", "wire", "insulation", "cable_od", "cp")},
-    "target_r": "target.resistance_ohm", "target_z": "target.impedance_ohm", "target_swr": "target.swr",
+    "target_r": "target.resistance_ohm", "target_z": "target.impedance_ohm", "max_swr": "target.swr",
     "load": "load.resistance_ohm",
 }
 _CORE = (("od", "id", "height"), ("core_factor", "window"), ("width", "thickness", "length", "hole", "hole_spacing"))
@@ -353,6 +354,10 @@ def _given_on_command_line(name: str) -> bool:
     return source is not None and source.name not in ("DEFAULT", "DEFAULT_MAP")
 
 
+#: Output parameters whose names do not end in ``_out``.
+_OUTPUT_PARAMETERS = frozenset({"save_material", "spice"})
+
+
 def with_design_file(func: Callable) -> Callable:
     """Give a command ``--design FILE``: its values fill the command's parameters listed in
     :data:`DESIGN_FILE_KEYS` unless given on the command line (decorate below ``@app.command()``
@@ -368,6 +373,8 @@ def with_design_file(func: Callable) -> Callable:
         if path is None:
             return func(**kwargs)
         design = load_design(path)
+        # The design file is an input: no output of the command may overwrite it.
+        check_outputs([v for k, v in kwargs.items() if k in _OUTPUT_PARAMETERS or k.endswith("_out")], [path])
         kwargs, taken = merge_design(design, kwargs, _given_on_command_line)
         tokens = (_active_design.set(design), _from_file.set(frozenset(taken)))
         try:

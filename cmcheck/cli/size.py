@@ -118,8 +118,9 @@ class _LazyProgress:
 
 
 @app.command("size")
+@o.with_design_file
 def size_command(
-    band: o.BandOpt,
+    band: Annotated[Optional[str], typer.Option("--band", "-b", help="Frequency band(s): 1-100MHz, 3.5MHz-30MHz, or 1.8-2MHz,3.5-4MHz (required here or in --design).")] = None,
     target_r: Annotated[Optional[str], typer.Option("--target-r", help=f"Minimum resistance R over the band, e.g. 1k (default {DEFAULT_TARGET_OHM:g} Ω).")] = None,
     target_z: Annotated[Optional[str], typer.Option("--target-z", help="Instead of --target-r: minimum |Z| over the band.")] = None,
     cable_od: o.CableOD = None,
@@ -157,6 +158,8 @@ def size_command(
     turns, then margin. Exit status 1 when no design meets the target (the closest one, the
     reason and what to relax are shown).
     """
+    if band is None:
+        raise o.missing("--band")
     b = o.band_from_option(band)
     if target_r is not None and target_z is not None:
         raise DesignError("give either --target-r or --target-z, not both")
@@ -209,6 +212,7 @@ def size_command(
 
 
 @app.command("compare")
+@o.with_design_file
 @o.with_design_options(material=False)
 def compare_command(
     materials: MaterialsOpt = None,

@@ -151,6 +151,7 @@ def build_transformer(topology: Topology, design, line_z0=None, line_length=None
 
 
 @app.command()
+@o.with_design_file
 @o.with_design_options()
 def transformer(
     design_options: dict = None,
@@ -174,6 +175,7 @@ def transformer(
     csv_out: o.CsvOut = None,
     plot_out: o.PlotOut = None,
     touchstone_out: Annotated[Optional[Path], typer.Option("--touchstone", help="Write the transformer as an N-port (.s2p unun, .s3p balun) for a circuit simulator.", rich_help_panel=o.OUTPUT_PANEL)] = None,
+    html_out: o.HtmlOut = None,
 ) -> None:
     """Analyse a transformer or balun: input impedance, SWR, losses, balance; heat at power.
 
@@ -200,7 +202,7 @@ def transformer(
         raise CmcheckError(f"--leg-to-ground applies to baluns; {topo.name} has one output to ground")
     spec, ch = build_transformer(topo, design, lz0, llen, velocity_factor, open_file, short_file)
     inputs = [x for x in (load, open_file, short_file, design_options["material"], topology) if x and Path(x).is_file()]
-    check_outputs([json_out, csv_out, plot_out, touchstone_out], inputs)
+    check_outputs([json_out, csv_out, plot_out, touchstone_out, html_out], inputs)
     f = b.grid(points)
     result = analyse(topo, f, spec, ld, source_impedance=zs, power_w=p or 1.0)
     cores = 1 if topo.kind == "flux" else len(topo.lines)
@@ -209,7 +211,8 @@ def transformer(
                                 description=desc, surface_area_m2=getattr(design.core, "surface_area", None),
                                 power_given=p is not None, rows=rows, characterisation=ch)
     network = design_network(topo, f, spec, zs) if touchstone_out else None
-    write_transformer_outputs(report, network, json=json_out, csv=csv_out, plot=plot_out, touchstone=touchstone_out)
+    write_transformer_outputs(report, network, json=json_out, csv=csv_out, plot=plot_out, touchstone=touchstone_out,
+                              html=html_out)
     show(report)
 
 

@@ -24,7 +24,7 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Callable
 
-from ..reporting.demo_report import identification_report, invented, transformer_report
+from ..reporting.demo_report import invented
 from ..reporting.results import Report
 
 __all__ = ["INVENTED", "Part", "data_dir", "data_files", "demo_reports"]
@@ -104,21 +104,30 @@ def _supply_lead() -> Part:
 
 
 def _balun() -> Part:
+    from ..model.choke import ChokeDesign
     from ..model.conductors import Wire
     from ..model.cores import RingCore
     from ..model.materials import get_material
+    from ..model.winding import Winding
+    from ..reporting.transformer_report import transformer_report
     from ..transformer import TOPOLOGIES, LineWinding, Load, analyse
     from ..units import Band
 
+    # What `cmcheck transformer --topology guanella-4:1 --material nizn-250 --od 36mm --id 23mm
+    # --height 12.5mm --turns 8 --wire 1.6mm --insulation 0.25mm --load 200 --leg-to-ground 1k,1.5k
+    # --power 100W --points 61` computes, through the same library calls and report.
     band = Band.single(1.8e6, 30e6)
-    winding = LineWinding(RingCore(36e-3, 23e-3, 12.5e-3), get_material("nizn-250"), 8, Wire(1.6e-3, 0.25e-3, 2.1))
+    topology = TOPOLOGIES["guanella-4:1"]
+    design = ChokeDesign(RingCore(36e-3, 23e-3, 12.5e-3), get_material("nizn-250"), Winding(8, Wire(1.6e-3, 0.25e-3)))
+    spec = LineWinding(design.core, design.material, design.winding.turns, design.winding.conductor, topology.conductors)
     # The feed line's legs see the antenna's unequal capacitance to ground: an unbalanced load.
     load = Load.resistor(200.0, leg_p=1000.0, leg_n=1500.0)
-    result = analyse(TOPOLOGIES["guanella-4:1"], band.grid(61), winding, load, power_w=100.0)
-    description = ("Guanella 4:1 balun, 8 bifilar turns of 1.6 mm PTFE-insulated wire on each of two "
-                   "36 × 23 × 12.5 mm nizn-250 rings, into 200 Ω (legs 1 kΩ and 1.5 kΩ to ground)")
-    return Part("balun-4to1", "Will a 4:1 balun match the 200 Ω balanced feed from 50 Ω?",
-                transformer_report(result, description=description, band=band))
+    result = analyse(topology, band.grid(61), spec, load, source_impedance=50.0, power_w=100.0)
+    description = f"{topology.name}: {design.describe()} ({len(topology.lines)} cores)"
+    report = transformer_report(result, topology=topology, transformer=spec, load=load, band=band, z0=50.0,
+                                max_swr=2.0, description=description, surface_area_m2=design.core.surface_area,
+                                power_given=True, rows=8)
+    return Part("balun-4to1", "Will a 4:1 balun match the 200 Ω balanced feed from 50 Ω?", report)
 
 
 def _member_chokes(files: list[Path]) -> Part:
@@ -136,27 +145,29 @@ def _member_chokes(files: list[Path]) -> Part:
 
 def _drawer_core(path: Path) -> Part:
     from ..errors import CmcheckWarning
-    from ..identify import FamilyConstants, identify
+    from ..identify import identify
     from ..measurement.methods import extract
     from ..measurement.touchstone import read_touchstone
     from ..model.cores import RingCore
-    from ..model.materials import builtin_materials, get_material
+    from ..reporting.identify_report import identify_report
 
+    # What `cmcheck identify drawer-core.s1p --od 23mm --id 14mm --height 7.5mm --turns 10`
+    # computes: the built-in families and candidate materials.
     ring = RingCore(23e-3, 14e-3, 7.5e-3)
-    families = [FamilyConstants.from_material(get_material(k)) for k in ("nizn-800", "mnzn-1500", "iron-powder-35")]
     with warnings.catch_warnings():
         # The fit's own doubts are in the report (trusted points, uncertainties).
         warnings.simplefilter("ignore", CmcheckWarning)
-        ident = identify(extract(read_touchstone(path)), c1=ring.c1, turns=10, families=families,
-                         candidates=list(builtin_materials().values()))
-    description = f"{path}: 10 turns on an unmarked {ring.describe()} from the drawer"
+        ex = extract(read_touchstone(path))
+        ident = identify(ex, c1=ring.c1, turns=10)
+
     def material(p: Path) -> None:
         from ..model.materials import save_material_csv
 
         save_material_csv(p, ident.frequency_hz, ident.material_permeability(), [INVENTED, *ident.material_comments()])
 
     return Part("drawer-core", "What is this unmarked core made of?",
-                identification_report(ident, description=description), {"drawer-core-material.csv": material})
+                identify_report(ident, core_text=ring.describe(), method=ex.method, rows=8),
+                {"drawer-core-material.csv": material})
 
 
 def demo_reports(sweeps: Path | str | None = None) -> list[Part]:

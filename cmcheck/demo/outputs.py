@@ -4,6 +4,7 @@ plus one HTML page of all the reports (or, without the HTML renderer, an index o
 from __future__ import annotations
 
 import html as html_text
+import re
 from pathlib import Path
 from typing import Sequence
 
@@ -46,7 +47,7 @@ def write_outputs(parts: Sequence[Part], out: str | Path) -> list[Path]:
                 write_json(out / f"{part.name}.json", r.json)
                 written.append(out / f"{part.name}.json")
             # Each part's full tables; a report without any gives its console tables.
-            tables = dict(r.data) or {t.title or f"table{i}": t for i, t in enumerate(r.tables, 1)}
+            tables = dict(r.data) or {_slug(t.title) or f"table{i}": t for i, t in enumerate(r.tables, 1)}
             for key, table in tables.items():
                 path = out / f"{part.name}-{key}.csv"
                 write_table_csv(path, table)
@@ -70,6 +71,12 @@ def write_outputs(parts: Sequence[Part], out: str | Path) -> list[Path]:
             atomic_write(page, lambda p: Path(p).write_text(_index(parts, written, out), encoding="utf-8"))
         written.append(page)
     return written
+
+
+def _slug(title: str | None) -> str:
+    """A table title as a file-name part: ``"Fitted parameters"`` → ``fitted-parameters``."""
+    words = re.findall(r"[a-z0-9]+", (title or "").split("(")[0].lower())
+    return "-".join(words)
 
 
 def _index(parts: Sequence[Part], written: Sequence[Path], out: Path) -> str:

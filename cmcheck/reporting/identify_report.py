@@ -100,16 +100,17 @@ def identify_report(ident, *, core_text: str, method: str, rows: int = 12, circu
     doc = ident.to_dict()
     if circuit is not None:
         doc["equivalent_circuit"] = circuit.to_dict()
-    return Report("identify", body, doc, inputs={"file": ident.source, "core": core_text, "turns": ident.turns},
+    title = f"Identification of {ident.source}: {ident.turns:g} turns on {core_text}"
+    return Report(title, body, doc, inputs={"file": ident.source, "core": core_text, "turns": ident.turns},
                   figures=(figure,), notes=tuple(notes))
 
 
 def write_identify_outputs(report: Report, ident, *, json=None, plot=None, material=None, spice=None,
-                           circuit=None, spice_name: str = "winding") -> None:
+                           circuit=None, spice_name: str = "winding", html=None) -> None:
     """Write the asked files of an identification all together or none.
 
     ``material``: the whole-band material CSV (:meth:`Identification.save_material_csv`);
-    ``spice``: ``circuit`` as a SPICE subcircuit.
+    ``spice``: ``circuit`` as a SPICE subcircuit; ``html``: the offline HTML page of the report.
     """
     from ..identify.circuit import write_spice
     from .files import staged_outputs, write_json
@@ -120,6 +121,10 @@ def write_identify_outputs(report: Report, ident, *, json=None, plot=None, mater
             write_json(json, report.json)
         if plot:
             plot_figure(plot, report.figures[0])
+        if html:
+            from .html import write_html
+
+            write_html(html, report)
         if material:
             ident.save_material_csv(material)
         if spice:

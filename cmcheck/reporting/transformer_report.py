@@ -210,9 +210,15 @@ def transformer_report(result, *, topology, transformer, load, band, z0: float, 
                   body=tuple(body), json=js, data={"curve": full}, figures=(fig,), notes=tuple(notes))
 
 
-def write_transformer_outputs(report: Report, network=None, *, json=None, csv=None, plot=None, touchstone=None) -> None:
-    """Write the asked files all together or none; ``network`` is the design's scikit-rf N-port."""
+def write_transformer_outputs(report: Report, network=None, *, json=None, csv=None, plot=None, touchstone=None,
+                              html=None) -> None:
+    """Write the asked files all together or none; ``network`` is the design's scikit-rf N-port,
+    ``html`` the offline HTML page of the report."""
     with staged_outputs():
+        if html:
+            from .html import write_html
+
+            write_html(html, report)
         if json:
             write_json(json, report.json)
         if csv:
