@@ -24,7 +24,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import IdentificationError
-from ..model.families import Family
+from ..model.families import Family, snoek_two_component_permeability
 from ..model.materials import Debye, Material, Tabulated, TwoComponent, debye_permeability, two_component_permeability
 
 __all__ = [
@@ -70,11 +70,9 @@ def family_permeability(frequency_hz, mu_i, snoek_hz, spin_fraction, dw_to_spin,
     Physica 14(4), 207–217 (1948) (µi·fr ≈ const within a family); T. Tsutaoka, J. Appl. Phys.
     93(5), 2789 (2003), eqs. (1)–(3) (the two-component form).
     """
-    chi = np.asarray(mu_i, dtype=float) - 1.0
-    f_s = snoek_hz / chi
-    f_dw = dw_to_spin * f_s
-    return two_component_permeability(frequency_hz, (1.0 - spin_fraction) * chi, f_dw, damping_to_dw * f_dw,
-                                      spin_fraction * chi, f_s)
+    # The families' own form (cmcheck.model.families), in the fit's parameters.
+    return snoek_two_component_permeability(frequency_hz, mu_i, 1.0 - spin_fraction, dw_to_spin * snoek_hz,
+                                            damping_to_dw, snoek_hz)
 
 
 @dataclass(frozen=True)
