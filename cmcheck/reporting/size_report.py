@@ -31,7 +31,7 @@ def size_report(
     check: str | None = None,
     cp_hint: str = "give it as the winding's cp",
     safety: bool | None = None,
-    sizes_hint: str = "give your own table as sizes (a CSV file)",
+    sizes_hint: str = "a table of your own cores (a CSV file) can extend or replace it",
 ) -> Report:
     """The report of a sizing search.
 
