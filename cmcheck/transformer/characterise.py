@@ -13,7 +13,6 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import least_squares
 
 from ..errors import MeasurementError, TransformerError
 from ..model.materials import Debye
@@ -156,6 +155,8 @@ def characterise_flux_coupled(open_f, open_z, short_f, short_z, primary_turns: i
         return np.concatenate([ro.real, ro.imag, rs.real, rs.imag])
 
     q0 = np.array([math.log(mu0_guess), math.log(5e6), math.log(l_leak0), math.log(1e-12), math.log(r0), 0.0])
+    from scipy.optimize import least_squares  # kept off the CLI start-up path
+
     sol = least_squares(residual, q0, method="trf", x_scale="jac")
     rms = float(np.sqrt(np.mean(sol.fun**2)))
     return Characterisation(build(sol.x), rms, int(of.size + sf.size))

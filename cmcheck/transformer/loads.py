@@ -85,6 +85,7 @@ class Load:
     @classmethod
     def touchstone(cls, path, leg_p=None, leg_n=None) -> "Load":
         """A measured one-port, read with :func:`cmcheck.measurement.touchstone.read_touchstone`."""
+        from ..measurement.methods import reflection_z
         from ..measurement.touchstone import read_touchstone
 
         s = read_touchstone(path)
@@ -93,7 +94,7 @@ class Load:
         g = s.s[:, 0, 0]
         if np.any(g == 1):
             raise TransformerError(f"{path}: the load is an open circuit at some frequency")
-        z = s.z0 * (1 + g) / (1 - g)
+        z = reflection_z(g, s.z0)
         return cls(frequency_hz=np.asarray(s.frequency_hz), z_table=z, leg_p=leg_p, leg_n=leg_n, label=str(path))
 
     def impedance(self, frequency_hz) -> np.ndarray:
