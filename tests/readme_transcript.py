@@ -13,6 +13,11 @@ commands left it (the demo's design file) and is compared and rewritten the same
 
 Normalisations, the only ones (both sides): trailing blanks of each line are dropped, and an
 elapsed time ``in 0.42 s`` reads ``in … s``.
+
+Sources: no physical values here. The transcript format (prompt ``$ cmcheck ``, stderr before
+stdout, the ``<!-- file: … -->`` marker) and the two normalisations are the project's own
+conventions for its README (README.md, examples/update_readme.py); the expected outputs are the
+README's own text, and the demo sweeps it starts from are invented (examples/make_demo_data.py).
 """
 
 from __future__ import annotations
@@ -28,9 +33,10 @@ from typing import Callable
 
 ROOT = Path(__file__).resolve().parents[1]
 README = ROOT / "README.md"
-PROMPT = "$ cmcheck "
+PROMPT = "$ cmcheck "  # the README's own transcript prompt (project convention)
+# Markdown fences (``` or ~~~, three or more): CommonMark spec, "Fenced code blocks".
 _FENCE = re.compile(r"^(```+|~~~+)")
-_ELAPSED = re.compile(r"\bin \d+(?:\.\d+)? s\b")
+_ELAPSED = re.compile(r"\bin \d+(?:\.\d+)? s\b")  # the project's own normalisation (run times vary)
 
 
 @dataclass(frozen=True)

@@ -3,6 +3,22 @@ the problem, no traceback, and every output file left as it was.
 
 Run in-process (the ``run_cli`` fixture); one subprocess test per command proves the exit path
 of the installed entry point. The ranges are those of :mod:`cmcheck.limits`.
+
+Sources of the check values (none is a measured or published physical value):
+
+- exit statuses: 2 = bad input, 1 = a limit fails (``EXIT_BAD_INPUT`` / ``EXIT_LIMIT_FAILED``),
+  the project's convention in cmcheck/cli/app.py; the single ``error: …`` line is the project's
+  one error handler, cmcheck/cli/main.py.
+- ranges in the expected words (``1 mm – 1 m``, ``1 – 64``, ``1 nF``, ``AWG 0000 – 46``,
+  ``10 mm``, ``100 mm``, ``1 kHz – 3 GHz``, ``100000``): cmcheck/limits.py, the project's own
+  table (CORE_DIMENSION, STACK, CP, GAUGE / WIRE_DIAMETER, INSULATION, CABLE_OD, ANALYTIC_BAND,
+  INITIAL_PERMEABILITY / MAX_PERMEABILITY); the gauge range is the one limits.py attributes to
+  ASTM B258.
+- the other expected words (``positive``, ``≥ 0``, ``needs a unit``, ``low edge``,
+  ``inconclusive``, …): the project's own error and warning texts (cmcheck/limits.py,
+  cmcheck/units.py, cmcheck/model/materials.py, cmcheck/measurement/qa.py, evidence.py).
+- the absurd inputs themselves (1e300 m, 1000 cores, 3 µF, 99 AWG, µ' = −800, …): invented test
+  values, chosen to lie outside those ranges.
 """
 
 from __future__ import annotations
@@ -13,13 +29,15 @@ import sys
 import numpy as np
 import pytest
 
+# Invented test inputs: a 20 × 10 × 5 mm ring, 3 turns, of nizn-650 (a member of the project's
+# built-in NiZn family, cmcheck/model/families.py); plausible, not taken from any data sheet.
 D = ("--material", "nizn-650", "--od", "20mm", "--id", "10mm", "--height", "5mm", "--turns", "3")
 RING = ("--od", "20mm", "--id", "10mm", "--height", "5mm", "--turns", "3")
 
 
 def _s2p(path, z):
     """A series-through two-port of impedance z (one value per point) between 50 Ω ports."""
-    f = np.geomspace(1e6, 100e6, 21)
+    f = np.geomspace(1e6, 100e6, 21)  # invented test sweep: 21 points, 1–100 MHz
     z = np.broadcast_to(np.asarray(z, complex), f.shape)
     s21, s11 = 100.0 / (z + 100.0), z / (z + 100.0)  # Pozar 4th ed. Table 4.2 (series impedance)
     rows = [f"{fi:.6g} {a.real:.9g} {a.imag:.9g} {b.real:.9g} {b.imag:.9g} {b.real:.9g} {b.imag:.9g} "
@@ -32,6 +50,11 @@ def _s2p(path, z):
 def files(tmp_path):
     """Input files of the table, by name."""
     w = 2 * np.pi * np.geomspace(1e6, 100e6, 21)
+    # Every value in these files is an invented test input: a plausible 300 Ω + 20 µH choke, a
+    # 0.01 Ω near-short, a pickle header (b"\x80\x04\x95", Python's pickle protocol 4 opcodes),
+    # and tables/size rows made absurd on purpose (µ' = −800, 1e300, µ'' < 0, OD 2 km, NaN).
+    # The CSV headers are the project's own formats (cmcheck/model/materials.py,
+    # cmcheck/design size tables).
     out = {
         "ok": _s2p(tmp_path / "ok.s2p", 300 + 1j * w * 20e-6),
         "tiny": _s2p(tmp_path / "tiny.s2p", 0.01),  # S21 ≈ 1: no point resolvable series-through
@@ -53,6 +76,9 @@ def files(tmp_path):
 
 
 # (name, args with {file} placeholders, expected status, words the one error line must contain)
+# Statuses: 2 = bad input, 1 = a limit fails, the project's convention in cmcheck/cli/app.py.
+# Ranges in the words: cmcheck/limits.py, the project's own table (see the module docstring);
+# the other words are the project's own message texts. Inputs are invented, absurd on purpose.
 CASES = [
     # predict: absurd dimensions, stacks, capacitance, wire, bands
     ("od 1e300 m", ("predict", *D[:2], "--od", "1e300m", "--id", "10mm", "--height", "5mm", "--turns", "3", "--band", "1-30MHz"), 2, ["--od", "1e+300 m", "1 mm – 1 m"]),
@@ -112,6 +138,8 @@ CASES = [
     ("size table ring 2 km", ("size", "--band", "1-30MHz", "--sizes", "{bad_sizes}", "--no-builtin-sizes"), 2, ["sizes.csv"]),
     ("size table nan", ("size", "--band", "1-30MHz", "--sizes", "{nan_sizes}", "--no-builtin-sizes"), 2, ["nan_sizes.csv"]),
     ("size table µ' −800", ("size", "--band", "1-10MHz", "--materials", "{neg_mu}"), 2, ["mu_prime"]),
+    # 10.3 mm cable: an invented input whose bend limit lets no built-in size reach the default
+    # 1 kΩ target; exit 1 = a limit fails (cmcheck/cli/app.py).
     ("size nothing meets the target", ("size", "--band", "1-30MHz", "--cable-od", "10.3mm"), 1, []),
     # compare
     ("compare od 1e300 m", ("compare", "--materials", "nizn-650", "--od", "1e300m", "--id", "10mm", "--height", "5mm", "--turns", "3", "--band", "1-30MHz"), 2, ["--od", "1 mm – 1 m"]),
@@ -137,6 +165,7 @@ def _fill(args, files, tmp_path):
 
 
 def test_the_table_has_40_cases_over_every_command():
+    # 40: the project's own minimum for this table, no published source; every command of OUTPUTS.
     assert len(CASES) >= 40
     assert {c[1][0] for c in CASES} == set(OUTPUTS)
 
@@ -152,6 +181,8 @@ def test_bad_input(run_cli, files, tmp_path, name, args, status, words):
     if status == 2 and name not in PER_FILE:
         argv += [x for opt, p in outs.items() for x in (opt, str(p))]
     code, out, err = run_cli(*argv)
+    # status and words come from CASES (sources above); "before\n" is this test's own marker,
+    # and unchanged outputs are the project's rule "outputs are atomic" (DEVELOPERS.md).
     assert code == status, err
     assert "Traceback" not in err + out
     if status == 2:
@@ -168,6 +199,9 @@ def test_bad_input(run_cli, files, tmp_path, name, args, status, words):
 
 def test_band_at_a_tables_edge_warns_with_the_stretched_range(run_cli, tmp_path):
     m = tmp_path / "m.csv"
+    # Invented table over 1–10 MHz; a band 5 % beyond each end is inside the project's own
+    # stretch allowance (EXTRAPOLATION_RATIO = 1.1, cmcheck/model/materials.py), so it warns
+    # (exit 0) naming the stretched ranges in the project's own format.
     m.write_text("frequency_hz,mu_prime,mu_double_prime\n1e6,800,10\n1e7,100,100\n")
     code, _, err = run_cli("predict", *RING, "--material", m, "--band", "0.95-10.5MHz")
     assert code == 0
@@ -175,12 +209,15 @@ def test_band_at_a_tables_edge_warns_with_the_stretched_range(run_cli, tmp_path)
 
 
 def test_no_valid_point_without_a_limit_warns(run_cli, files):
+    # exit 0 without a limit (cmcheck/cli/app.py); the warning text is the project's own
+    # (cmcheck/measurement/qa.py).
     code, _, err = run_cli("extract", files["tiny"], "--method", "series")
     assert code == 0
     assert "warning:" in err and "no valid point in the band" in err
 
 
 def test_reflection_of_a_through_warns_on_the_command_line(run_cli, files):
+    # the warning text is the project's own (cmcheck/measurement/evidence.py)
     code, _, err = run_cli("extract", files["tiny"], "--method", "reflect")
     assert code == 0 and "S21 shows a through" in err and "--method series" in err
 
@@ -193,6 +230,8 @@ def test_reflection_of_a_through_warns_on_the_command_line(run_cli, files):
     ("compare", "--materials", "nizn-650", *RING, "--cp", "3uF", "--band", "1-30MHz"),
 ], ids=["predict", "materials", "extract", "size", "compare"])
 def test_exit_path_of_the_entry_point(argv):
+    # exit 2 = bad input, the project's convention in cmcheck/cli/app.py; one "error:" line and
+    # nothing on stdout, the project's one error handler (cmcheck/cli/main.py).
     r = subprocess.run([sys.executable, "-m", "cmcheck", *argv], capture_output=True, text=True)
     assert r.returncode == 2
     assert "Traceback" not in r.stderr and r.stderr.count("error:") == 1 and r.stdout == ""
